@@ -1,0 +1,24 @@
+import node from "@astrojs/node";
+import react from "@astrojs/react";
+import tailwindcss from "@tailwindcss/vite";
+import { defineConfig } from "astro/config";
+import plinthServices from "./src/integrations/services.mjs";
+
+export default defineConfig({
+  output: "server",
+  adapter: node({ mode: "standalone" }),
+  integrations: [react(), plinthServices()],
+  security: {
+    // Refuse cross-site form posts (our middleware adds the same check for JSON).
+    checkOrigin: true,
+    // A plant server is reached by whatever name or address its network gives it, so the
+    // request's own Host is trusted to build the URL; the origin check compares against it.
+    allowedDomains: [{ protocol: "http" }, { protocol: "https" }],
+  },
+  server: { port: Number(process.env.PORT ?? 4321), host: process.env.HOST ?? "0.0.0.0" },
+  devToolbar: { enabled: false },
+  vite: {
+    plugins: [tailwindcss()],
+    ssr: { noExternal: ["echarts-for-react"] },
+  },
+});

@@ -1,0 +1,10 @@
+import { defineConfig } from "drizzle-kit";
+
+export default defineConfig({
+  dialect: "sqlite",
+  schema: "./src/lib/server/db/schema/index.ts",
+  out: "./drizzle",
+  dbCredentials: { url: process.env.DATABASE_PATH ?? "data/plinth.db" },
+  strict: true,
+  verbose: false,
+});

@@ -1,0 +1,123 @@
+/**
+ * Who may do what: the one table read by the middleware (pages and API alike), by each
+ * API route's own guard, by the navigation, and by the role-matrix test.
+ *
+ * Roles, from the plant's point of view:
+ * - manager: everything, including users, roles, gateways and settings;
+ * - qc: mixes, calibration, breaks, alert rules, releases, and all an operator may do;
+ * - operator: the live floor, pours, acknowledging alerts, logger uploads;
+ * - viewer: reads everything except user administration; changes nothing.
+ */
+export const roles = ["manager", "qc", "operator", "viewer"] as const;
+export type Role = (typeof roles)[number];
+
+export const roleLabels: Record<Role, string> = {
+  manager: "Manager",
+  qc: "Quality control",
+  operator: "Operator",
+  viewer: "Viewer",
+};
+
+/** Each action and the roles that may take it. */
+export const permissions = {
+  /** Read plant data: pours, sensors, mixes, readings, alerts. */
+  "plant.read": ["manager", "qc", "operator", "viewer"],
+  /** One's own account: profile, password, units, theme. */
+  "self.manage": ["manager", "qc", "operator", "viewer"],
+  /** Create pours, assign sensors, acknowledge alerts, upload logger files. */
+  "floor.operate": ["manager", "qc", "operator"],
+  /** Mixes, calibration, cylinder breaks, alert rules, strip and ship releases. */
+  "quality.manage": ["manager", "qc"],
+  /** Users and roles. */
+  "users.manage": ["manager"],
+  /** Gateways, API tokens, sensors' identity and placement, plant settings. */
+  "plant.admin": ["manager"],
+  /** The audit log of sign-ins, role changes and every record. */
+  "audit.read": ["manager"],
+} as const satisfies Record<string, readonly Role[]>;
+
+export type Action = keyof typeof permissions;
+
+export function can(role: Role | null | undefined, action: Action): boolean {
+  if (!role) return false;
+  return (permissions[action] as readonly Role[]).includes(role);
+}
+
+type Method = "GET" | "POST" | "PATCH" | "PUT" | "DELETE";
+
+/**
+ * One route (page or API) as Astro names it under src/pages, with the action each method
+ * needs. "public" needs nobody; "session" needs any signed-in user.
+ */
+export interface RouteAccess {
+  /** Astro route pattern, e.g. "/api/v1/users/[id]". */
+  route: string;
+  kind: "page" | "api";
+  methods: Partial<Record<Method, Action | "public" | "session">>;
+  /** For the role-matrix test: a concrete path to call (defaults to the route). */
+  sample?: string;
+}
+
+export const routeAccess: readonly RouteAccess[] = [
+  // Pages
+  { route: "/login", kind: "page", methods: { GET: "public" } },
+  { route: "/", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/account", kind: "page", methods: { GET: "self.manage" } },
+  { route: "/forbidden", kind: "page", methods: { GET: "session" } },
+  { route: "/team", kind: "page", methods: { GET: "users.manage" } },
+  { route: "/audit", kind: "page", methods: { GET: "audit.read" } },
+  // Sign-in API
+  { route: "/api/auth/login", kind: "api", methods: { POST: "public" } },
+  { route: "/api/auth/logout", kind: "api", methods: { POST: "session" } },
+  { route: "/api/health", kind: "api", methods: { GET: "public" } },
+  // Public JSON API
+  { route: "/api/v1/me", kind: "api", methods: { GET: "self.manage", PATCH: "self.manage" } },
+  { route: "/api/v1/me/password", kind: "api", methods: { POST: "self.manage" } },
+  { route: "/api/v1/users", kind: "api", methods: { GET: "users.manage", POST: "users.manage" } },
+  {
+    route: "/api/v1/users/[id]",
+    kind: "api",
+    methods: { PATCH: "users.manage" },
+    sample: "/api/v1/users/1",
+  },
+  {
+    route: "/api/v1/users/[id]/password-reset",
+    kind: "api",
+    methods: { POST: "users.manage" },
+    sample: "/api/v1/users/999999/password-reset",
+  },
+  { route: "/api/v1/audit", kind: "api", methods: { GET: "audit.read" } },
+];
+
+const compiled = routeAccess.map((r) => ({
+  access: r,
+  pattern: new RegExp(
+    "^" +
+      r.route
+        .replace(/[.+?^${}()|\\]/g, "\\$&")
+        .replace(/\/\[\.\.\.[^\]]+\]/g, "(?:/.*)?")
+        .replace(/\[[^\]]+\]/g, "[^/]+") +
+      "/?$",
+  ),
+}));
+
+/** The declared access of a path, or undefined when no route of Plinth's has that path. */
+export function findRouteAccess(pathname: string): RouteAccess | undefined {
+  return compiled.find((c) => c.pattern.test(pathname))?.access;
+}
+
+/** What a method on a route requires; undefined means the method is not offered there. */
+export function requirementFor(
+  access: RouteAccess,
+  method: string,
+): Action | "public" | "session" | undefined {
+  const m = (method === "HEAD" ? "GET" : method) as Method;
+  return access.methods[m];
+}
+
+/** Navigation: each role sees only the pages it may open. */
+export const navigation: readonly { href: string; label: string; action: Action }[] = [
+  { href: "/", label: "Plant", action: "plant.read" },
+  { href: "/team", label: "Team", action: "users.manage" },
+  { href: "/audit", label: "Audit log", action: "audit.read" },
+];

@@ -1,0 +1,40 @@
+import { z } from "zod";
+
+/**
+ * Every environment variable Plinth reads, with its default. The README's configuration
+ * table is written from this list; keep the two together.
+ */
+const envSchema = z.object({
+  NODE_ENV: z.string().default("development"),
+  HOST: z.string().default("0.0.0.0"),
+  PORT: z.coerce.number().int().min(0).max(65535).default(4321),
+  DATABASE_PATH: z.string().default("data/plinth.db"),
+  MQTT_PORT: z.coerce.number().int().min(0).max(65535).default(1883),
+  MQTT_HOST: z.string().default("127.0.0.1"),
+  MQTT_URL: z.string().optional(),
+  PLINTH_DEMO: z.enum(["0", "1"]).default("0"),
+  SESSION_DAYS: z.coerce.number().positive().default(14),
+  COOKIE_SECURE: z.enum(["auto", "true", "false"]).default("auto"),
+  LOGIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
+  LOGIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),
+  LOG_LEVEL: z.enum(["debug", "info", "warn", "error"]).default("info"),
+});
+
+export type Env = z.infer<typeof envSchema>;
+
+let cached: Env | undefined;
+
+/** Reads and checks the environment once; a bad value stops the start with a clear message. */
+export function env(): Env {
+  if (cached) return cached;
+  const parsed = envSchema.safeParse(process.env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`);
+    throw new Error(`Plinth: bad environment:\n${lines.join("\n")}`);
+  }
+  cached = parsed.data;
+  return cached;
+}
+
+export const isProduction = () => env().NODE_ENV === "production";
+export const isDemo = () => env().PLINTH_DEMO === "1";
