@@ -5,49 +5,15 @@
 //
 //   node scripts/start.mjs          real use: no demo data
 //   node scripts/start.mjs --demo   the demo plant
-import { spawnSync } from "node:child_process";
-import fs from "node:fs";
 import http from "node:http";
 import path from "node:path";
-import { fileURLToPath, pathToFileURL } from "node:url";
+import { pathToFileURL } from "node:url";
+import { ensureBuild, root } from "./ensure-build.mjs";
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const demo = process.argv.includes("--demo");
 process.env.NODE_ENV ??= "production";
 process.env.ASTRO_TELEMETRY_DISABLED = "1";
 if (demo) process.env.PLINTH_DEMO = "1";
-
-function newestMtime(dir) {
-  let newest = 0;
-  if (!fs.existsSync(dir)) return 0;
-  for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
-    const p = path.join(dir, entry.name);
-    if (entry.isDirectory()) newest = Math.max(newest, newestMtime(p));
-    else if (!entry.name.endsWith(".test.ts")) newest = Math.max(newest, fs.statSync(p).mtimeMs);
-  }
-  return newest;
-}
-
-function ensureBuild() {
-  const entry = path.join(root, "dist", "server", "entry.mjs");
-  const services = path.join(root, "dist", "server", "services.mjs");
-  const built = fs.existsSync(entry) && fs.existsSync(services) ? fs.statSync(entry).mtimeMs : 0;
-  const sources = Math.max(
-    ...["src", "simulator", "public"].map((d) => newestMtime(path.join(root, d))),
-    fs.statSync(path.join(root, "astro.config.mjs")).mtimeMs,
-  );
-  if (built && built >= sources) return;
-  console.log(built ? "Plinth: sources changed, rebuilding…" : "Plinth: building (first run, about a minute)…");
-  const r = spawnSync(process.execPath, [path.join(root, "node_modules", "astro", "astro.js"), "build"], {
-    cwd: root,
-    stdio: "inherit",
-    env: { ...process.env, NODE_ENV: "production" },
-  });
-  if (r.status !== 0) {
-    console.error("Plinth: the build failed; see above.");
-    process.exit(r.status ?? 1);
-  }
-}
 
 if (process.env.PLINTH_SKIP_BUILD !== "1") ensureBuild();
 

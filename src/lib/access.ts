@@ -56,6 +56,8 @@ export interface RouteAccess {
   methods: Partial<Record<Method, Action | "public" | "session">>;
   /** For the role-matrix test: a concrete path to call (defaults to the route). */
   sample?: string;
+  /** The status a permitted caller gets, where it is not 200 (the "not for your role" page). */
+  permittedStatus?: number;
 }
 
 export const routeAccess: readonly RouteAccess[] = [
@@ -63,7 +65,7 @@ export const routeAccess: readonly RouteAccess[] = [
   { route: "/login", kind: "page", methods: { GET: "public" } },
   { route: "/", kind: "page", methods: { GET: "plant.read" } },
   { route: "/account", kind: "page", methods: { GET: "self.manage" } },
-  { route: "/forbidden", kind: "page", methods: { GET: "session" } },
+  { route: "/forbidden", kind: "page", methods: { GET: "session" }, permittedStatus: 403 },
   { route: "/team", kind: "page", methods: { GET: "users.manage" } },
   { route: "/audit", kind: "page", methods: { GET: "audit.read" } },
   // Sign-in API

@@ -3,7 +3,7 @@
  * session library directly, so the library can be swapped without touching routes.
  */
 import { DrizzleSQLiteAdapter } from "@lucia-auth/adapter-drizzle";
-import { Lucia, TimeSpan, type Session } from "lucia";
+import { Lucia, TimeSpan, type Cookie, type Session } from "lucia";
 import { createHash, randomBytes } from "node:crypto";
 import { and, eq, isNull } from "drizzle-orm";
 import type { Role } from "@/lib/access";
@@ -44,7 +44,7 @@ declare module "lucia" {
 function makeLucia() {
   const adapter = new DrizzleSQLiteAdapter(getDb(), sessions, users);
   return new Lucia(adapter, {
-    sessionExpiresIn: new TimeSpan(env().SESSION_DAYS * 24, "h"),
+    sessionExpiresIn: new TimeSpan(Math.max(1, Math.round(env().SESSION_DAYS * 86_400)), "s"),
     sessionCookie: {
       name: SESSION_COOKIE,
       expires: true,
@@ -65,16 +65,23 @@ function makeLucia() {
 
 const KEY = Symbol.for("plinth.auth");
 const g = globalThis as unknown as {
-  [KEY]?: { lucia: ReturnType<typeof makeLucia>; throttle: LoginThrottle };
+  [KEY]?: { lucia: ReturnType<typeof makeLucia>; byEmail: LoginThrottle; byAddress: LoginThrottle };
 };
+
+/** Failures from one address may be more than from one account (a shared plant PC), to a point. */
+const ADDRESS_FAILURE_FACTOR = 5;
 
 function state() {
   if (!g[KEY]) {
     const e = env();
     g[KEY] = {
       lucia: makeLucia(),
-      throttle: new LoginThrottle({
+      byEmail: new LoginThrottle({
         maxFailures: e.LOGIN_MAX_FAILURES,
+        windowMs: e.LOGIN_WINDOW_MINUTES * 60_000,
+      }),
+      byAddress: new LoginThrottle({
+        maxFailures: e.LOGIN_MAX_FAILURES * ADDRESS_FAILURE_FACTOR,
         windowMs: e.LOGIN_WINDOW_MINUTES * 60_000,
       }),
     };
@@ -82,7 +89,22 @@ function state() {
   return g[KEY];
 }
 
-export const loginThrottle = () => state().throttle;
+/** Sign-in throttling, by account and by client address. */
+export const loginThrottle = {
+  /** Milliseconds before this account may try again from this address (0: now). */
+  wait(email: string, address: string, nowMs: number): number {
+    const s = state();
+    return Math.max(s.byEmail.wait([email], nowMs), s.byAddress.wait([address], nowMs));
+  },
+  fail(email: string, address: string, nowMs: number): void {
+    const s = state();
+    s.byEmail.fail([email], nowMs);
+    s.byAddress.fail([address], nowMs);
+  },
+  succeed(email: string): void {
+    state().byEmail.succeed(email);
+  },
+};
 
 export interface CookieToSet {
   name: string;
@@ -109,7 +131,7 @@ export function cookieSecure(url: URL): boolean {
   return env().NODE_ENV === "production" && !loopback;
 }
 
-function toCookie(c: { name: string; value: string; attributes: Record<string, unknown> }, url: URL): CookieToSet {
+function toCookie(c: Cookie, url: URL): CookieToSet {
   return {
     name: c.name,
     value: c.value,
@@ -118,8 +140,8 @@ function toCookie(c: { name: string; value: string; attributes: Record<string, u
       sameSite: "lax",
       secure: cookieSecure(url),
       path: "/",
-      ...(c.attributes.maxAge !== undefined ? { maxAge: c.attributes.maxAge as number } : {}),
-      ...(c.attributes.expires ? { expires: c.attributes.expires as Date } : {}),
+      ...(c.attributes.maxAge !== undefined ? { maxAge: c.attributes.maxAge } : {}),
+      ...(c.attributes.expires ? { expires: c.attributes.expires } : {}),
     },
   };
 }

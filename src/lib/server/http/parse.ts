@@ -1,4 +1,4 @@
-import { z } from "zod";
+import type { z } from "zod";
 import { badRequest, payloadTooLarge, unsupportedMediaType, type FieldError } from "./responses";
 
 /** zod issues as one entry per offending field. */

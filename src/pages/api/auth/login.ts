@@ -28,10 +28,10 @@ export const POST: APIRoute = endpoint(async (ctx) => {
   const { email, password, next } = parsed.data;
   const normalised = normaliseEmail(email);
   const actor = auditActor(ctx);
-  const keys = [`email:${normalised}`, `ip:${actor.ip ?? "unknown"}`];
+  const address = actor.ip ?? "unknown";
   const now = Date.now();
 
-  const waitMs = loginThrottle().wait(keys, now);
+  const waitMs = loginThrottle.wait(normalised, address, now);
   if (waitMs > 0) {
     writeAudit({ ...actor, label: normalised }, { action: "auth.throttled", entityType: "user", entityId: normalised });
     const retryS = Math.ceil(waitMs / 1000);
@@ -46,7 +46,7 @@ export const POST: APIRoute = endpoint(async (ctx) => {
   const user = findUserByEmail(normalised);
   const ok = user && user.active ? await verifyPassword(user.passwordHash, password) : await verifyAgainstNothing(password);
   if (!user || !ok) {
-    loginThrottle().fail(keys, now);
+    loginThrottle.fail(normalised, address, now);
     writeAudit(
       { ...actor, label: normalised },
       { action: "auth.sign_in_failed", entityType: "user", entityId: user?.id ?? normalised, detail: { reason: !user ? "unknown" : !user.active ? "inactive" : "password" } },
@@ -55,7 +55,7 @@ export const POST: APIRoute = endpoint(async (ctx) => {
     return problem(401, "invalid-credentials", "Sign-in failed", "That e-mail and password do not match an active account.");
   }
 
-  loginThrottle().succeed(keys[0]!);
+  loginThrottle.succeed(normalised);
   const cookie = await startSession(user.id, url);
   cookies.set(cookie.name, cookie.value, cookie.attributes);
   updateUser(user.id, { lastSignInAt: now });

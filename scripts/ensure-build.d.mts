@@ -1,0 +1,3 @@
+export declare const root: string;
+export declare function buildIsFresh(): boolean;
+export declare function ensureBuild(options?: { quiet?: boolean }): void;

@@ -1,0 +1,20 @@
+/** The audit log's action codes in words people read. Unknown codes show as they are. */
+const labels: Record<string, string> = {
+  "auth.signed_in": "Signed in",
+  "auth.signed_out": "Signed out",
+  "auth.sign_in_failed": "Sign-in failed",
+  "auth.throttled": "Sign-in refused (too many failures)",
+  "user.created": "Person added",
+  "user.role_changed": "Role changed",
+  "user.deactivated": "Person deactivated",
+  "user.reactivated": "Person reactivated",
+  "user.details_changed": "Person's details changed",
+  "user.profile_changed": "Own profile changed",
+  "user.password_changed": "Own password changed",
+  "user.password_reset": "Password reset by a manager",
+  "demo.seeded": "Demo plant created",
+};
+
+export function auditLabel(action: string): string {
+  return labels[action] ?? action;
+}
