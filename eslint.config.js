@@ -9,8 +9,14 @@ export default tseslint.config(
   {
     languageOptions: { globals: { ...globals.node, ...globals.browser } },
     rules: {
-      "@typescript-eslint/no-unused-vars": ["error", { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_" }],
-      "@typescript-eslint/consistent-type-imports": ["error", { fixStyle: "inline-type-imports", disallowTypeAnnotations: false }],
+      "@typescript-eslint/no-unused-vars": [
+        "error",
+        { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_" },
+      ],
+      "@typescript-eslint/consistent-type-imports": [
+        "error",
+        { fixStyle: "inline-type-imports", disallowTypeAnnotations: false },
+      ],
       "no-console": "off",
     },
   },
@@ -23,10 +29,22 @@ export default tseslint.config(
         {
           patterns: [
             { group: ["astro", "astro:*", "astro/*"], message: "src/domain is pure: no Astro." },
-            { group: ["drizzle-orm", "drizzle-orm/*", "better-sqlite3"], message: "src/domain is pure: no database." },
-            { group: ["mqtt", "aedes", "nodemailer", "twilio"], message: "src/domain is pure: no I/O." },
-            { group: ["node:*", "fs", "path", "http", "net", "child_process"], message: "src/domain is pure: no Node I/O." },
-            { group: ["@/lib/server/*", "**/lib/server/*"], message: "src/domain must not reach the server edge." },
+            {
+              group: ["drizzle-orm", "drizzle-orm/*", "better-sqlite3"],
+              message: "src/domain is pure: no database.",
+            },
+            {
+              group: ["mqtt", "aedes", "nodemailer", "twilio"],
+              message: "src/domain is pure: no I/O.",
+            },
+            {
+              group: ["node:*", "fs", "path", "http", "net", "child_process"],
+              message: "src/domain is pure: no Node I/O.",
+            },
+            {
+              group: ["@/lib/server/*", "**/lib/server/*"],
+              message: "src/domain must not reach the server edge.",
+            },
           ],
         },
       ],

@@ -36,11 +36,15 @@ export function buildIsFresh() {
 export function ensureBuild({ quiet = false } = {}) {
   if (buildIsFresh()) return;
   console.log("Plinth: building the server (about half a minute)…");
-  const r = spawnSync(process.execPath, [path.join(root, "node_modules", "astro", "astro.js"), "build"], {
-    cwd: root,
-    stdio: quiet ? ["ignore", "ignore", "inherit"] : "inherit",
-    env: { ...process.env, NODE_ENV: "production", ASTRO_TELEMETRY_DISABLED: "1" },
-  });
+  const r = spawnSync(
+    process.execPath,
+    [path.join(root, "node_modules", "astro", "astro.js"), "build"],
+    {
+      cwd: root,
+      stdio: quiet ? ["ignore", "ignore", "inherit"] : "inherit",
+      env: { ...process.env, NODE_ENV: "production", ASTRO_TELEMETRY_DISABLED: "1" },
+    },
+  );
   if (r.status !== 0) {
     console.error("Plinth: the build failed; see above.");
     process.exit(r.status ?? 1);

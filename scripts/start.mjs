@@ -51,5 +51,7 @@ process.on("SIGTERM", () => void stop("SIGTERM"));
 
 server.listen(port, host, () => {
   const shown = host === "0.0.0.0" || host === "::" ? "localhost" : host;
-  console.log(`Plinth: serving on http://${shown}:${server.address().port}${demo ? " (demo plant)" : ""}`);
+  console.log(
+    `Plinth: serving on http://${shown}:${server.address().port}${demo ? " (demo plant)" : ""}`,
+  );
 });

@@ -25,8 +25,15 @@ function fail(message: string): never {
 async function readHidden(prompt: string): Promise<string> {
   if (!process.stdin.isTTY) fail("no terminal to ask for a password; use --password-stdin");
   return new Promise((resolve) => {
-    const rl = readline.createInterface({ input: process.stdin, output: process.stdout, terminal: true });
-    const out = rl as unknown as { _writeToOutput: (s: string) => void; output: NodeJS.WriteStream };
+    const rl = readline.createInterface({
+      input: process.stdin,
+      output: process.stdout,
+      terminal: true,
+    });
+    const out = rl as unknown as {
+      _writeToOutput: (s: string) => void;
+      output: NodeJS.WriteStream;
+    };
     out._writeToOutput = (s: string) => {
       if (s.includes(prompt)) out.output.write(prompt);
     };
@@ -79,7 +86,20 @@ if (!checked.success) fail(checked.error.issues[0]?.message ?? "password not acc
 
 migrateDatabase();
 if (findUserByEmail(email.data)) fail(`an account with ${email.data} already exists`);
-const user = insertUser({ email: email.data, name: name.data, role: values.role as Role, passwordHash: await hashPassword(password) });
-writeAudit({ label: "command line" }, { action: "user.created", entityType: "user", entityId: user.id, detail: { email: user.email, role: user.role, via: "user:create" } });
+const user = insertUser({
+  email: email.data,
+  name: name.data,
+  role: values.role as Role,
+  passwordHash: await hashPassword(password),
+});
+writeAudit(
+  { label: "command line" },
+  {
+    action: "user.created",
+    entityType: "user",
+    entityId: user.id,
+    detail: { email: user.email, role: user.role, via: "user:create" },
+  },
+);
 closeDatabase();
 console.log(`Created ${user.role} ${user.email} (id ${user.id}).`);

@@ -1,6 +1,11 @@
 import { defineMiddleware } from "astro:middleware";
 import { can, findRouteAccess, requirementFor } from "@/lib/access";
-import { SESSION_COOKIE, checkSession, principalFromBearer, type CookieToSet } from "@/lib/server/auth";
+import {
+  SESSION_COOKIE,
+  checkSession,
+  principalFromBearer,
+  type CookieToSet,
+} from "@/lib/server/auth";
 import { forbidden, unauthorized } from "@/lib/server/http/responses";
 
 const UNSAFE = new Set(["POST", "PUT", "PATCH", "DELETE"]);
@@ -46,7 +51,12 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   if (authz) {
     const m = /^Bearer\s+(\S{8,512})$/i.exec(authz);
     locals.principal = m ? principalFromBearer(m[1]!) : null;
-    if (!locals.principal && isApi && access && requirementFor(access, request.method) !== "public") {
+    if (
+      !locals.principal &&
+      isApi &&
+      access &&
+      requirementFor(access, request.method) !== "public"
+    ) {
       return withSecurityHeaders(unauthorized("The key is not valid, or has been revoked."));
     }
   } else {
@@ -60,7 +70,11 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
     }
   }
 
-  if (UNSAFE.has(request.method) && (viaCookie || cookies.has(SESSION_COOKIE)) && crossSite(request, url)) {
+  if (
+    UNSAFE.has(request.method) &&
+    (viaCookie || cookies.has(SESSION_COOKIE)) &&
+    crossSite(request, url)
+  ) {
     return withSecurityHeaders(forbidden("Cross-site requests are refused."));
   }
 

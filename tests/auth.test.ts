@@ -17,9 +17,12 @@ const login = (body: unknown, headers: Record<string, string> = {}) =>
     redirect: "manual",
   });
 
-async function auditActions(cookie: string): Promise<{ action: string; actor: string; detail: unknown }[]> {
+async function auditActions(
+  cookie: string,
+): Promise<{ action: string; actor: string; detail: unknown }[]> {
   const res = await call(plinth.url, cookie, "/api/v1/audit?limit=500");
-  return ((await res.json()) as { entries: { action: string; actor: string; detail: unknown }[] }).entries;
+  return ((await res.json()) as { entries: { action: string; actor: string; detail: unknown }[] })
+    .entries;
 }
 
 describe("sign-in", () => {
@@ -91,7 +94,9 @@ describe("sign-in", () => {
     expect(retry).toBeGreaterThan(0);
     expect(retry).toBeLessThanOrEqual(15 * 60);
     // Another account is not held back by this one's failures.
-    expect((await login({ email: "qc@example.com", password: "demo-plinth-pass" })).status).toBe(200);
+    expect((await login({ email: "qc@example.com", password: "demo-plinth-pass" })).status).toBe(
+      200,
+    );
   });
 
   it("writes sign-ins, failures and throttling to the audit log", async () => {
@@ -119,7 +124,10 @@ describe("the origin check", () => {
   it("refuses a cross-site form post", async () => {
     const res = await fetch(`${plinth.url}/api/auth/logout`, {
       method: "POST",
-      headers: { origin: "http://evil.example", "content-type": "application/x-www-form-urlencoded" },
+      headers: {
+        origin: "http://evil.example",
+        "content-type": "application/x-www-form-urlencoded",
+      },
       body: "",
       redirect: "manual",
     });
@@ -144,10 +152,20 @@ describe("the team", () => {
     const res = await call(plinth.url, manager, "/api/v1/users", {
       method: "POST",
       headers: { "content-type": "application/json" },
-      body: JSON.stringify({ email: "new.hand@example.com", name: "New Hand", role: "operator", phone: "+1 555 010 0199" }),
+      body: JSON.stringify({
+        email: "new.hand@example.com",
+        name: "New Hand",
+        role: "operator",
+        phone: "+1 555 010 0199",
+      }),
     });
     expect(res.status).toBe(201);
-    const created = (await res.json()) as { id: number; temporary_password: string; phone: string; must_change_password: boolean };
+    const created = (await res.json()) as {
+      id: number;
+      temporary_password: string;
+      phone: string;
+      must_change_password: boolean;
+    };
     expect(created.phone).toBe("+15550100199");
     expect(created.must_change_password).toBe(true);
 
@@ -159,10 +177,16 @@ describe("the team", () => {
     const change = await call(plinth.url, cookie, "/api/v1/me/password", {
       method: "POST",
       headers: { "content-type": "application/json" },
-      body: JSON.stringify({ current_password: created.temporary_password, new_password: "a long new password" }),
+      body: JSON.stringify({
+        current_password: created.temporary_password,
+        new_password: "a long new password",
+      }),
     });
     expect(change.status).toBe(204);
-    const renewed = change.headers.getSetCookie().find((c) => c.startsWith("plinth_session="))!.split(";")[0]!;
+    const renewed = change.headers
+      .getSetCookie()
+      .find((c) => c.startsWith("plinth_session="))!
+      .split(";")[0]!;
     expect((await call(plinth.url, renewed, "/")).status).toBe(200);
     // The old session ended with the change.
     expect((await call(plinth.url, cookie, "/api/v1/me")).status).toBe(401);
@@ -180,21 +204,35 @@ describe("the team", () => {
 
   it("changes a role, deactivates (ending the person's sessions) and audits both", async () => {
     const manager = await signIn(plinth.url, demoEmail("manager"));
-    const list = (await (await call(plinth.url, manager, "/api/v1/users")).json()) as { users: { id: number; email: string }[] };
+    const list = (await (await call(plinth.url, manager, "/api/v1/users")).json()) as {
+      users: { id: number; email: string }[];
+    };
     const viewer = list.users.find((u) => u.email === "viewer@example.com")!;
     const viewerCookie = await signIn(plinth.url, "viewer@example.com");
 
     const patch = (body: unknown) =>
-      call(plinth.url, manager, `/api/v1/users/${viewer.id}`, { method: "PATCH", headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
+      call(plinth.url, manager, `/api/v1/users/${viewer.id}`, {
+        method: "PATCH",
+        headers: { "content-type": "application/json" },
+        body: JSON.stringify(body),
+      });
     expect((await patch({ role: "operator" })).status).toBe(200);
     expect((await patch({ active: false })).status).toBe(200);
     expect((await call(plinth.url, viewerCookie, "/api/v1/me")).status).toBe(401);
-    expect((await login({ email: "viewer@example.com", password: "demo-plinth-pass" })).status).toBe(401);
+    expect(
+      (await login({ email: "viewer@example.com", password: "demo-plinth-pass" })).status,
+    ).toBe(401);
     expect((await patch({ active: true, role: "viewer" })).status).toBe(200);
 
     const entries = await auditActions(manager);
-    const roleChange = entries.find((e) => e.action === "user.role_changed" && (e.detail as { to: string }).to === "operator");
-    expect(roleChange?.detail).toMatchObject({ email: "viewer@example.com", from: "viewer", to: "operator" });
+    const roleChange = entries.find(
+      (e) => e.action === "user.role_changed" && (e.detail as { to: string }).to === "operator",
+    );
+    expect(roleChange?.detail).toMatchObject({
+      email: "viewer@example.com",
+      from: "viewer",
+      to: "operator",
+    });
     expect(entries.some((e) => e.action === "user.deactivated")).toBe(true);
   });
 

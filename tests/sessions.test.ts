@@ -19,7 +19,11 @@ describe("session lifetime", () => {
     await sleep(2_600);
     const res = await call(plinth.url, cookie, "/api/v1/me");
     expect(res.status).toBe(200);
-    expect(res.headers.getSetCookie().some((c) => c.startsWith("plinth_session=") && /Max-Age=\d+/.test(c))).toBe(true);
+    expect(
+      res.headers
+        .getSetCookie()
+        .some((c) => c.startsWith("plinth_session=") && /Max-Age=\d+/.test(c)),
+    ).toBe(true);
     await sleep(2_600);
     // Past the original expiry, but renewed: still good.
     expect((await call(plinth.url, cookie, "/api/v1/me")).status).toBe(200);

@@ -35,12 +35,18 @@ const passwordForm = z
     new_password: newPasswordField,
     confirm: z.string(),
   })
-  .refine((v) => v.new_password === v.confirm, { path: ["confirm"], message: "The two new passwords differ" });
+  .refine((v) => v.new_password === v.confirm, {
+    path: ["confirm"],
+    message: "The two new passwords differ",
+  });
 type PasswordForm = z.input<typeof passwordForm>;
 
 function Banner({ tone, text }: { tone: "ok" | "error"; text: string }) {
   return (
-    <p role={tone === "error" ? "alert" : "status"} className={`rounded-md px-3 py-2 text-sm font-semibold ${tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg text-ok"}`}>
+    <p
+      role={tone === "error" ? "alert" : "status"}
+      className={`rounded-md px-3 py-2 text-sm font-semibold ${tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg text-ok"}`}
+    >
       {text}
     </p>
   );
@@ -49,12 +55,25 @@ function Banner({ tone, text }: { tone: "ok" | "error"; text: string }) {
 /** One's own account: profile, units, theme, alert channels, and password. */
 export default function AccountForms({ me, mustChangePassword }: Props) {
   const [profileMsg, setProfileMsg] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
-  const [passwordMsg, setPasswordMsg] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
+  const [passwordMsg, setPasswordMsg] = useState<{ tone: "ok" | "error"; text: string } | null>(
+    null,
+  );
   const profile = useForm<ProfileForm>({
     resolver: zodResolver(profileForm),
-    defaultValues: { name: me.name, email: me.email, phone: me.phone ?? "", units: me.units, theme: me.theme, notify_sms: me.notify.sms, notify_email: me.notify.email },
+    defaultValues: {
+      name: me.name,
+      email: me.email,
+      phone: me.phone ?? "",
+      units: me.units,
+      theme: me.theme,
+      notify_sms: me.notify.sms,
+      notify_email: me.notify.email,
+    },
   });
-  const password = useForm<PasswordForm>({ resolver: zodResolver(passwordForm), defaultValues: { current_password: "", new_password: "", confirm: "" } });
+  const password = useForm<PasswordForm>({
+    resolver: zodResolver(passwordForm),
+    defaultValues: { current_password: "", new_password: "", confirm: "" },
+  });
   const pe = profile.formState.errors;
   const we = password.formState.errors;
 
@@ -66,7 +85,8 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
     });
     if (!res.ok) {
       const p = await readProblem(res);
-      for (const [f, e] of Object.entries(p.fields)) if (f in values) profile.setError(f as keyof ProfileForm, { message: e });
+      for (const [f, e] of Object.entries(p.fields))
+        if (f in values) profile.setError(f as keyof ProfileForm, { message: e });
       setProfileMsg({ tone: "error", text: p.message });
       return;
     }
@@ -79,37 +99,90 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
     const res = await fetch("/api/v1/me/password", {
       method: "POST",
       headers: { "content-type": "application/json" },
-      body: JSON.stringify({ current_password: values.current_password, new_password: values.new_password }),
+      body: JSON.stringify({
+        current_password: values.current_password,
+        new_password: values.new_password,
+      }),
     });
     if (!res.ok) {
       const p = await readProblem(res);
-      for (const [f, e] of Object.entries(p.fields)) if (f in values) password.setError(f as keyof PasswordForm, { message: e });
+      for (const [f, e] of Object.entries(p.fields))
+        if (f in values) password.setError(f as keyof PasswordForm, { message: e });
       setPasswordMsg({ tone: "error", text: p.message });
       return;
     }
     password.reset();
-    setPasswordMsg({ tone: "ok", text: "Password changed. Your other sessions have been signed out." });
+    setPasswordMsg({
+      tone: "ok",
+      text: "Password changed. Your other sessions have been signed out.",
+    });
     if (mustChangePassword) window.location.assign("/");
   }
 
   const invalid = (e: unknown) => (e ? true : undefined);
   return (
     <div className="grid gap-6 lg:grid-cols-2">
-      <section aria-labelledby="pw" className={`card p-4 sm:p-5 ${mustChangePassword ? "lg:order-first" : "lg:order-last"}`}>
-        <h2 id="pw" className="text-lg font-bold">Password</h2>
-        <form className="mt-3 grid gap-4" onSubmit={password.handleSubmit(changePassword)} noValidate>
+      <section
+        aria-labelledby="pw"
+        className={`card p-4 sm:p-5 ${mustChangePassword ? "lg:order-first" : "lg:order-last"}`}
+      >
+        <h2 id="pw" className="text-lg font-bold">
+          Password
+        </h2>
+        <form
+          className="mt-3 grid gap-4"
+          onSubmit={password.handleSubmit(changePassword)}
+          noValidate
+        >
           {passwordMsg && <Banner {...passwordMsg} />}
-          <Field id="current_password" label="Current password" error={we.current_password?.message}>
-            <input id="current_password" type="password" className="input" autoComplete="current-password" aria-invalid={invalid(we.current_password)} aria-describedby={we.current_password ? "current_password-err" : undefined} {...password.register("current_password")} />
+          <Field
+            id="current_password"
+            label="Current password"
+            error={we.current_password?.message}
+          >
+            <input
+              id="current_password"
+              type="password"
+              className="input"
+              autoComplete="current-password"
+              aria-invalid={invalid(we.current_password)}
+              aria-describedby={we.current_password ? "current_password-err" : undefined}
+              {...password.register("current_password")}
+            />
           </Field>
-          <Field id="new_password" label="New password" hint="At least 10 characters. A short sentence is easy to type on a phone." error={we.new_password?.message}>
-            <input id="new_password" type="password" className="input" autoComplete="new-password" aria-invalid={invalid(we.new_password)} aria-describedby={we.new_password ? "new_password-err" : undefined} {...password.register("new_password")} />
+          <Field
+            id="new_password"
+            label="New password"
+            hint="At least 10 characters. A short sentence is easy to type on a phone."
+            error={we.new_password?.message}
+          >
+            <input
+              id="new_password"
+              type="password"
+              className="input"
+              autoComplete="new-password"
+              aria-invalid={invalid(we.new_password)}
+              aria-describedby={we.new_password ? "new_password-err" : undefined}
+              {...password.register("new_password")}
+            />
           </Field>
           <Field id="confirm" label="New password again" error={we.confirm?.message}>
-            <input id="confirm" type="password" className="input" autoComplete="new-password" aria-invalid={invalid(we.confirm)} aria-describedby={we.confirm ? "confirm-err" : undefined} {...password.register("confirm")} />
+            <input
+              id="confirm"
+              type="password"
+              className="input"
+              autoComplete="new-password"
+              aria-invalid={invalid(we.confirm)}
+              aria-describedby={we.confirm ? "confirm-err" : undefined}
+              {...password.register("confirm")}
+            />
           </Field>
           <div>
-            <button type="submit" className="btn btn-primary" disabled={password.formState.isSubmitting}>
+            <button
+              type="submit"
+              className="btn btn-primary"
+              disabled={password.formState.isSubmitting}
+            >
               {password.formState.isSubmitting ? "Changing…" : "Change password"}
             </button>
           </div>
@@ -117,25 +190,57 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
       </section>
 
       <section aria-labelledby="profile" className="card p-4 sm:p-5">
-        <h2 id="profile" className="text-lg font-bold">Profile and display</h2>
+        <h2 id="profile" className="text-lg font-bold">
+          Profile and display
+        </h2>
         <form className="mt-3 grid gap-4" onSubmit={profile.handleSubmit(saveProfile)} noValidate>
           {profileMsg && <Banner {...profileMsg} />}
           <Field id="name" label="Name" error={pe.name?.message}>
-            <input id="name" className="input" autoComplete="name" aria-invalid={invalid(pe.name)} aria-describedby={pe.name ? "name-err" : undefined} {...profile.register("name")} />
+            <input
+              id="name"
+              className="input"
+              autoComplete="name"
+              aria-invalid={invalid(pe.name)}
+              aria-describedby={pe.name ? "name-err" : undefined}
+              {...profile.register("name")}
+            />
           </Field>
           <Field id="email" label="E-mail (your sign-in name)" error={pe.email?.message}>
-            <input id="email" type="email" className="input" autoComplete="email" aria-invalid={invalid(pe.email)} aria-describedby={pe.email ? "email-err" : undefined} {...profile.register("email")} />
+            <input
+              id="email"
+              type="email"
+              className="input"
+              autoComplete="email"
+              aria-invalid={invalid(pe.email)}
+              aria-describedby={pe.email ? "email-err" : undefined}
+              {...profile.register("email")}
+            />
           </Field>
-          <Field id="phone" label="Mobile phone for alert texts" hint="International form, e.g. +1 555 010 0123. Leave empty for no texts." error={pe.phone?.message}>
-            <input id="phone" type="tel" className="input" autoComplete="tel" aria-invalid={invalid(pe.phone)} aria-describedby={pe.phone ? "phone-err" : undefined} {...profile.register("phone")} />
+          <Field
+            id="phone"
+            label="Mobile phone for alert texts"
+            hint="International form, e.g. +1 555 010 0123. Leave empty for no texts."
+            error={pe.phone?.message}
+          >
+            <input
+              id="phone"
+              type="tel"
+              className="input"
+              autoComplete="tel"
+              aria-invalid={invalid(pe.phone)}
+              aria-describedby={pe.phone ? "phone-err" : undefined}
+              {...profile.register("phone")}
+            />
           </Field>
           <fieldset className="grid gap-2">
             <legend className="label">Alerts reach me by</legend>
             <label className="flex min-h-11 items-center gap-3">
-              <input type="checkbox" className="h-5 w-5" {...profile.register("notify_sms")} /> Text message
+              <input type="checkbox" className="h-5 w-5" {...profile.register("notify_sms")} /> Text
+              message
             </label>
             <label className="flex min-h-11 items-center gap-3">
-              <input type="checkbox" className="h-5 w-5" {...profile.register("notify_email")} /> E-mail
+              <input type="checkbox" className="h-5 w-5" {...profile.register("notify_email")} />{" "}
+              E-mail
             </label>
           </fieldset>
           <Field id="units" label="Units">
@@ -152,7 +257,11 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
             </select>
           </Field>
           <div>
-            <button type="submit" className="btn btn-primary" disabled={profile.formState.isSubmitting}>
+            <button
+              type="submit"
+              className="btn btn-primary"
+              disabled={profile.formState.isSubmitting}
+            >
               {profile.formState.isSubmitting ? "Saving…" : "Save"}
             </button>
           </div>

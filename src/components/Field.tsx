@@ -1,7 +1,19 @@
 import type { ReactNode } from "react";
 
 /** A labelled form field with its hint and its error, tied to the input by id. */
-export default function Field({ id, label, error, hint, children }: { id: string; label: string; error?: string | undefined; hint?: string; children: ReactNode }) {
+export default function Field({
+  id,
+  label,
+  error,
+  hint,
+  children,
+}: {
+  id: string;
+  label: string;
+  error?: string | undefined;
+  hint?: string;
+  children: ReactNode;
+}) {
   return (
     <div className="field">
       <label htmlFor={id}>{label}</label>

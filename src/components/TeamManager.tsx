@@ -43,9 +43,16 @@ async function api(path: string, method: string, body?: unknown) {
 /** The manager's team: add people, set roles, deactivate, reset passwords. */
 export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
   const [users, setUsers] = useState(initialUsers);
-  const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string; secret?: string } | null>(null);
+  const [notice, setNotice] = useState<{
+    tone: "ok" | "error";
+    text: string;
+    secret?: string;
+  } | null>(null);
   const [busy, setBusy] = useState<number | null>(null);
-  const form = useForm<AddForm>({ resolver: zodResolver(addForm), defaultValues: { name: "", email: "", role: "operator", phone: "" } });
+  const form = useForm<AddForm>({
+    resolver: zodResolver(addForm),
+    defaultValues: { name: "", email: "", role: "operator", phone: "" },
+  });
   const { errors, isSubmitting } = form.formState;
 
   async function add(values: AddForm) {
@@ -61,10 +68,18 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
     const created = (await res.json()) as TeamUser & { temporary_password: string };
     setUsers((u) => [...u, created].sort((a, b) => a.name.localeCompare(b.name)));
     form.reset({ name: "", email: "", role: "operator", phone: "" });
-    setNotice({ tone: "ok", text: `${created.name} can now sign in with this one-time password. They will choose their own at first sign-in.`, secret: created.temporary_password });
+    setNotice({
+      tone: "ok",
+      text: `${created.name} can now sign in with this one-time password. They will choose their own at first sign-in.`,
+      secret: created.temporary_password,
+    });
   }
 
-  async function patch(u: TeamUser, change: Partial<Pick<TeamUser, "role" | "active">>, what: string) {
+  async function patch(
+    u: TeamUser,
+    change: Partial<Pick<TeamUser, "role" | "active">>,
+    what: string,
+  ) {
     setBusy(u.id);
     const res = await api(`/api/v1/users/${u.id}`, "PATCH", change);
     setBusy(null);
@@ -78,7 +93,12 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
   }
 
   async function reset(u: TeamUser) {
-    if (!window.confirm(`Reset the password of ${u.name}? Their sessions end and they must choose a new password.`)) return;
+    if (
+      !window.confirm(
+        `Reset the password of ${u.name}? Their sessions end and they must choose a new password.`,
+      )
+    )
+      return;
     setBusy(u.id);
     const res = await api(`/api/v1/users/${u.id}/password-reset`, "POST", {});
     setBusy(null);
@@ -87,62 +107,110 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
       return;
     }
     const body = (await res.json()) as { temporary_password: string };
-    setNotice({ tone: "ok", text: `Give ${u.name} this one-time password. It is shown only now.`, secret: body.temporary_password });
+    setNotice({
+      tone: "ok",
+      text: `Give ${u.name} this one-time password. It is shown only now.`,
+      secret: body.temporary_password,
+    });
   }
 
   return (
     <div className="grid gap-6">
       {notice && (
-        <div role={notice.tone === "error" ? "alert" : "status"} className={`card p-4 ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg"}`}>
+        <div
+          role={notice.tone === "error" ? "alert" : "status"}
+          className={`card p-4 ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg"}`}
+        >
           <p className="font-semibold">{notice.text}</p>
           {notice.secret && (
             <p className="mt-2">
-              <code className="figure rounded bg-surface px-2 py-1 text-lg" data-testid="one-time-password">{notice.secret}</code>
+              <code
+                className="figure rounded bg-surface px-2 py-1 text-lg"
+                data-testid="one-time-password"
+              >
+                {notice.secret}
+              </code>
             </p>
           )}
         </div>
       )}
 
       <section aria-labelledby="people" className="card overflow-x-auto">
-        <h2 id="people" className="p-4 pb-0 text-lg font-bold">People ({users.length})</h2>
+        <h2 id="people" className="p-4 pb-0 text-lg font-bold">
+          People ({users.length})
+        </h2>
         <table className="mt-2 w-full min-w-[44rem] text-left text-sm">
           <thead className="border-b border-line text-muted">
             <tr>
-              <th scope="col" className="p-3">Name</th>
-              <th scope="col" className="p-3">Role</th>
-              <th scope="col" className="p-3">Phone</th>
-              <th scope="col" className="p-3">Last sign-in</th>
-              <th scope="col" className="p-3">Actions</th>
+              <th scope="col" className="p-3">
+                Name
+              </th>
+              <th scope="col" className="p-3">
+                Role
+              </th>
+              <th scope="col" className="p-3">
+                Phone
+              </th>
+              <th scope="col" className="p-3">
+                Last sign-in
+              </th>
+              <th scope="col" className="p-3">
+                Actions
+              </th>
             </tr>
           </thead>
           <tbody>
             {users.map((u) => (
-              <tr key={u.id} className={`border-b border-line last:border-0 ${u.active ? "" : "text-muted"}`}>
+              <tr
+                key={u.id}
+                className={`border-b border-line last:border-0 ${u.active ? "" : "text-muted"}`}
+              >
                 <th scope="row" className="p-3 font-semibold">
                   {u.name}
-                  {u.id === meId && <span className="ml-1 text-xs font-normal text-muted">(you)</span>}
+                  {u.id === meId && (
+                    <span className="ml-1 text-xs font-normal text-muted">(you)</span>
+                  )}
                   <span className="block text-xs font-normal text-muted">{u.email}</span>
                   {!u.active && <span className="text-xs font-bold">Deactivated</span>}
                 </th>
                 <td className="p-3">
-                  <label className="sr-only" htmlFor={`role-${u.id}`}>Role of {u.name}</label>
+                  <label className="sr-only" htmlFor={`role-${u.id}`}>
+                    Role of {u.name}
+                  </label>
                   <select
                     id={`role-${u.id}`}
                     className="input min-w-36"
                     value={u.role}
                     disabled={busy === u.id}
-                    onChange={(e) => void patch(u, { role: e.target.value as Role }, `role set to ${roleLabels[e.target.value as Role]}`)}
+                    onChange={(e) =>
+                      void patch(
+                        u,
+                        { role: e.target.value as Role },
+                        `role set to ${roleLabels[e.target.value as Role]}`,
+                      )
+                    }
                   >
                     {roles.map((r) => (
-                      <option key={r} value={r}>{roleLabels[r]}</option>
+                      <option key={r} value={r}>
+                        {roleLabels[r]}
+                      </option>
                     ))}
                   </select>
                 </td>
                 <td className="figure p-3">{u.phone ?? "—"}</td>
-                <td className="p-3">{u.last_sign_in_at ? formatDateTime(Date.parse(u.last_sign_in_at), timeZone, "short") : "never"}</td>
+                <td className="p-3">
+                  {u.last_sign_in_at
+                    ? formatDateTime(Date.parse(u.last_sign_in_at), timeZone, "short")
+                    : "never"}
+                </td>
                 <td className="p-3">
                   <div className="flex flex-wrap gap-2">
-                    <button type="button" className="btn btn-quiet text-sm" disabled={busy === u.id} onClick={() => void reset(u)}>
+                    <button
+                      type="button"
+                      className="btn btn-quiet text-sm"
+                      disabled={busy === u.id}
+                      onClick={() => void reset(u)}
+                    >
                       Reset password<span className="sr-only"> of {u.name}</span>
                     </button>
                     {u.id !== meId && (
@@ -150,9 +218,16 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
                         type="button"
                         className={`btn text-sm ${u.active ? "btn-danger" : "btn-quiet"}`}
                         disabled={busy === u.id}
-                        onClick={() => void patch(u, { active: !u.active }, u.active ? "deactivated; their sessions have ended" : "reactivated")}
+                        onClick={() =>
+                          void patch(
+                            u,
+                            { active: !u.active },
+                            u.active ? "deactivated; their sessions have ended" : "reactivated",
+                          )
+                        }
                       >
-                        {u.active ? "Deactivate" : "Reactivate"}<span className="sr-only"> {u.name}</span>
+                        {u.active ? "Deactivate" : "Reactivate"}
+                        <span className="sr-only"> {u.name}</span>
                       </button>
                     )}
                   </div>
@@ -164,24 +239,62 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
       </section>
 
       <section aria-labelledby="add" className="card p-4">
-        <h2 id="add" className="text-lg font-bold">Add a person</h2>
-        <p className="hint">They get a one-time password to give them in person; they choose their own at first sign-in.</p>
-        <form className="mt-3 grid gap-4 sm:grid-cols-2" onSubmit={form.handleSubmit(add)} noValidate>
+        <h2 id="add" className="text-lg font-bold">
+          Add a person
+        </h2>
+        <p className="hint">
+          They get a one-time password to give them in person; they choose their own at first
+          sign-in.
+        </p>
+        <form
+          className="mt-3 grid gap-4 sm:grid-cols-2"
+          onSubmit={form.handleSubmit(add)}
+          noValidate
+        >
           <Field id="add-name" label="Name" error={errors.name?.message}>
-            <input id="add-name" className="input" autoComplete="off" aria-invalid={errors.name ? true : undefined} aria-describedby={errors.name ? "add-name-err" : undefined} {...form.register("name")} />
+            <input
+              id="add-name"
+              className="input"
+              autoComplete="off"
+              aria-invalid={errors.name ? true : undefined}
+              aria-describedby={errors.name ? "add-name-err" : undefined}
+              {...form.register("name")}
+            />
           </Field>
           <Field id="add-email" label="E-mail" error={errors.email?.message}>
-            <input id="add-email" type="email" className="input" autoComplete="off" aria-invalid={errors.email ? true : undefined} aria-describedby={errors.email ? "add-email-err" : undefined} {...form.register("email")} />
+            <input
+              id="add-email"
+              type="email"
+              className="input"
+              autoComplete="off"
+              aria-invalid={errors.email ? true : undefined}
+              aria-describedby={errors.email ? "add-email-err" : undefined}
+              {...form.register("email")}
+            />
           </Field>
           <Field id="add-role" label="Role" error={errors.role?.message}>
             <select id="add-role" className="input" {...form.register("role")}>
               {roles.map((r) => (
-                <option key={r} value={r}>{roleLabels[r]}</option>
+                <option key={r} value={r}>
+                  {roleLabels[r]}
+                </option>
               ))}
             </select>
           </Field>
-          <Field id="add-phone" label="Mobile phone for alert texts (optional)" error={errors.phone?.message}>
-            <input id="add-phone" type="tel" className="input" placeholder="+1 555 010 0123" aria-invalid={errors.phone ? true : undefined} aria-describedby={errors.phone ? "add-phone-err" : undefined} {...form.register("phone")} />
+          <Field
+            id="add-phone"
+            label="Mobile phone for alert texts (optional)"
+            error={errors.phone?.message}
+          >
+            <input
+              id="add-phone"
+              type="tel"
+              className="input"
+              placeholder="+1 555 010 0123"
+              aria-invalid={errors.phone ? true : undefined}
+              aria-describedby={errors.phone ? "add-phone-err" : undefined}
+              {...form.register("phone")}
+            />
           </Field>
           <div className="sm:col-span-2">
             <button type="submit" className="btn btn-primary" disabled={isSubmitting}>

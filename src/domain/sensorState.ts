@@ -10,7 +10,11 @@ export const MOIST_CURE_MIN_RH_PCT = 95;
 
 export type SensorState = "reporting" | "silent" | "never";
 
-export function sensorState(lastSeenAtMs: number | null, nowMs: number, silentAfterMs = SILENT_AFTER_MS): SensorState {
+export function sensorState(
+  lastSeenAtMs: number | null,
+  nowMs: number,
+  silentAfterMs = SILENT_AFTER_MS,
+): SensorState {
   if (lastSeenAtMs === null) return "never";
   return nowMs - lastSeenAtMs > silentAfterMs ? "silent" : "reporting";
 }

@@ -1,6 +1,17 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
-import { cToF, deltaCToF, deltaFToC, displayStrength, fToC, kgM3ToLbYd3, lbYd3ToKgM3, mpaToPsi, PA_PER_PSI, psiToMpa } from "./units";
+import {
+  cToF,
+  deltaCToF,
+  deltaFToC,
+  displayStrength,
+  fToC,
+  kgM3ToLbYd3,
+  lbYd3ToKgM3,
+  mpaToPsi,
+  PA_PER_PSI,
+  psiToMpa,
+} from "./units";
 
 describe("pressure", () => {
   // Reference sheet §8.3: 1 psi = 0.45359237 kg × 9.80665 m/s² / (0.0254 m)² = 6894.757293168 Pa

@@ -33,7 +33,11 @@ export const mmToIn = (mm: number): number => mm / 25.4;
 export type UnitSystem = "us" | "si";
 
 /** How a user sees a temperature: value rounded for display and its unit label. */
-export function displayTemp(c: number, system: UnitSystem, digits = 1): { value: string; unit: string } {
+export function displayTemp(
+  c: number,
+  system: UnitSystem,
+  digits = 1,
+): { value: string; unit: string } {
   const v = system === "us" ? cToF(c) : c;
   return { value: v.toFixed(digits), unit: system === "us" ? "°F" : "°C" };
 }

@@ -9,7 +9,9 @@ export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 export function chromiumAvailable(): boolean {
   const ok = fs.existsSync(CHROMIUM_PATH);
   if (!ok && process.env.CI === "true") {
-    throw new Error(`Chromium is required in CI but ${CHROMIUM_PATH} is missing (apt-get install -y chromium).`);
+    throw new Error(
+      `Chromium is required in CI but ${CHROMIUM_PATH} is missing (apt-get install -y chromium).`,
+    );
   }
   return ok;
 }
@@ -33,7 +35,9 @@ export interface BrowserOptions {
 }
 
 /** A fresh headless Chromium profile with the given viewport; close() removes the profile. */
-export async function openBrowser(o: BrowserOptions): Promise<{ context: BrowserContext; close: () => Promise<void> }> {
+export async function openBrowser(
+  o: BrowserOptions,
+): Promise<{ context: BrowserContext; close: () => Promise<void> }> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "plinth-chromium-"));
   const context = await chromium.launchPersistentContext(dir, {
     executablePath: CHROMIUM_PATH,

@@ -46,21 +46,25 @@ export async function startPlinth(options: StartOptions = {}): Promise<RunningPl
   const port = await freePort();
   const mqttPort = await freePort();
   let out = "";
-  const child: ChildProcess = spawn(process.execPath, [path.join(root, "scripts", "start.mjs"), ...(options.demo === false ? [] : ["--demo"])], {
-    cwd: root,
-    env: {
-      ...process.env,
-      NODE_ENV: "production",
-      PLINTH_SKIP_BUILD: "1",
-      HOST: "127.0.0.1",
-      PORT: String(port),
-      MQTT_PORT: String(mqttPort),
-      DATABASE_PATH: dbPath,
-      LOG_LEVEL: "warn",
-      ...options.env,
+  const child: ChildProcess = spawn(
+    process.execPath,
+    [path.join(root, "scripts", "start.mjs"), ...(options.demo === false ? [] : ["--demo"])],
+    {
+      cwd: root,
+      env: {
+        ...process.env,
+        NODE_ENV: "production",
+        PLINTH_SKIP_BUILD: "1",
+        HOST: "127.0.0.1",
+        PORT: String(port),
+        MQTT_PORT: String(mqttPort),
+        DATABASE_PATH: dbPath,
+        LOG_LEVEL: "warn",
+        ...options.env,
+      },
+      stdio: ["ignore", "pipe", "pipe"],
     },
-    stdio: ["ignore", "pipe", "pipe"],
-  });
+  );
   child.stdout!.on("data", (d) => (out += d));
   child.stderr!.on("data", (d) => (out += d));
   const exited = new Promise<void>((resolve) => child.once("exit", () => resolve()));
@@ -104,7 +108,11 @@ export const DEMO_PASSWORD = "demo-plinth-pass";
 export const demoEmail = (role: string) => `${role}@example.com`;
 
 /** Signs in through the API and returns the session cookie ("name=value"). */
-export async function signIn(url: string, email: string, password = DEMO_PASSWORD): Promise<string> {
+export async function signIn(
+  url: string,
+  email: string,
+  password = DEMO_PASSWORD,
+): Promise<string> {
   const res = await fetch(`${url}/api/auth/login`, {
     method: "POST",
     headers: { "content-type": "application/json" },
@@ -117,7 +125,12 @@ export async function signIn(url: string, email: string, password = DEMO_PASSWOR
 }
 
 /** fetch with the session cookie, same-origin, never following redirects. */
-export function call(url: string, cookie: string | null, pathName: string, init: RequestInit = {}): Promise<Response> {
+export function call(
+  url: string,
+  cookie: string | null,
+  pathName: string,
+  init: RequestInit = {},
+): Promise<Response> {
   const headers = new Headers(init.headers);
   if (cookie) headers.set("cookie", cookie);
   if (init.method && init.method !== "GET") headers.set("origin", url);

@@ -11,7 +11,12 @@ export const phoneField = z
   })
   .transform((s) => (s === "" ? null : s));
 
-export const emailField = z.string().trim().toLowerCase().pipe(z.email({ message: "Enter a valid e-mail address" })).pipe(z.string().max(254));
+export const emailField = z
+  .string()
+  .trim()
+  .toLowerCase()
+  .pipe(z.email({ message: "Enter a valid e-mail address" }))
+  .pipe(z.string().max(254));
 
 export const nameField = z.string().trim().min(1, { message: "Enter a name" }).max(120);
 

@@ -12,7 +12,13 @@ import { apiTokens, gateways, sessions, users } from "../db/schema";
 import { env } from "../env";
 import { LoginThrottle } from "./throttle";
 
-export { hashPassword, verifyPassword, verifyAgainstNothing, temporaryPassword, MIN_PASSWORD_LENGTH } from "./passwords";
+export {
+  hashPassword,
+  verifyPassword,
+  verifyAgainstNothing,
+  temporaryPassword,
+  MIN_PASSWORD_LENGTH,
+} from "./passwords";
 
 export const SESSION_COOKIE = "plinth_session";
 

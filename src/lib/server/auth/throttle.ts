@@ -9,7 +9,11 @@ export interface ThrottlePolicy {
 }
 
 /** Pure: how long (ms) until another attempt is allowed, given the failure times. 0: now. */
-export function retryAfterMs(failuresMs: readonly number[], nowMs: number, policy: ThrottlePolicy): number {
+export function retryAfterMs(
+  failuresMs: readonly number[],
+  nowMs: number,
+  policy: ThrottlePolicy,
+): number {
   const recent = failuresMs.filter((t) => nowMs - t < policy.windowMs).sort((a, b) => a - b);
   if (recent.length < policy.maxFailures) return 0;
   const oldestThatCounts = recent[recent.length - policy.maxFailures]!;

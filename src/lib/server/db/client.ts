@@ -22,7 +22,8 @@ const holder = globalThis as unknown as { [KEY]?: DbHolder };
 
 /** Opens the database with Plinth's pragmas: WAL, foreign keys on, a busy timeout. */
 export function openDatabase(filePath: string): DbHolder {
-  if (filePath !== ":memory:") fs.mkdirSync(path.dirname(path.resolve(filePath)), { recursive: true });
+  if (filePath !== ":memory:")
+    fs.mkdirSync(path.dirname(path.resolve(filePath)), { recursive: true });
   const sqlite = new Database(filePath);
   sqlite.pragma("journal_mode = WAL");
   sqlite.pragma("synchronous = NORMAL");

@@ -5,7 +5,14 @@
  */
 import { eq, sql } from "drizzle-orm";
 import { psiToMpa } from "@/domain/units";
-import { demoAreas, demoMixes, demoPlant, demoPours, demoReading, demoSensors } from "../../../../simulator/plant";
+import {
+  demoAreas,
+  demoMixes,
+  demoPlant,
+  demoPours,
+  demoReading,
+  demoSensors,
+} from "../../../../simulator/plant";
 import { hashKey, hashPassword } from "../auth";
 import { getDb } from "../db/client";
 import { writeAudit } from "../db/queries/audit";
@@ -41,7 +48,12 @@ const HISTORY_STEP_MS = 5 * 60_000;
 
 /** True when the database already holds people: then the demo is not seeded again. */
 function alreadySeeded(): boolean {
-  return (getDb().select({ n: sql<number>`count(*)` }).from(users).get()?.n ?? 0) > 0;
+  return (
+    (getDb()
+      .select({ n: sql<number>`count(*)` })
+      .from(users)
+      .get()?.n ?? 0) > 0
+  );
 }
 
 export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
@@ -53,7 +65,14 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
   db.transaction((tx) => {
     for (const a of demoAccounts) {
       tx.insert(users)
-        .values({ email: a.email, name: a.name, role: a.role, phone: a.phone, passwordHash: hashed, updatedAt: nowMs })
+        .values({
+          email: a.email,
+          name: a.name,
+          role: a.role,
+          phone: a.phone,
+          passwordHash: hashed,
+          updatedAt: nowMs,
+        })
         .run();
     }
     tx.insert(gateways)
@@ -66,7 +85,11 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
 
     const areaIds = new Map<string, number>();
     demoAreas.forEach((a, i) => {
-      const row = tx.insert(areas).values({ ...a, sortOrder: i }).returning({ id: areas.id }).get();
+      const row = tx
+        .insert(areas)
+        .values({ ...a, sortOrder: i })
+        .returning({ id: areas.id })
+        .get();
       areaIds.set(a.name, row.id);
     });
     for (const s of demoSensors) {
@@ -147,9 +170,14 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
         })
         .returning({ id: pours.id })
         .get();
-      for (const pr of p.products) tx.insert(pourProducts).values({ pourId: row.id, ...pr }).run();
+      for (const pr of p.products)
+        tx.insert(pourProducts)
+          .values({ pourId: row.id, ...pr })
+          .run();
       for (const s of p.sensors) {
-        tx.insert(pourSensors).values({ pourId: row.id, sensorId: s, fromAt: castAt, createdBy: operator.id }).run();
+        tx.insert(pourSensors)
+          .values({ pourId: row.id, sensorId: s, fromAt: castAt, createdBy: operator.id })
+          .run();
       }
     }
   });
@@ -165,7 +193,14 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
     let last: ReadingRow | undefined;
     for (let t = start; t <= nowMs; t += HISTORY_STEP_MS) {
       const r = demoReading(s, t, nowMs);
-      last = { sensorId: s.id, ts: t, tempC: r.tempC, rhPct: r.rhPct, source: "demo", receivedAt: t };
+      last = {
+        sensorId: s.id,
+        ts: t,
+        tempC: r.tempC,
+        rhPct: r.rhPct,
+        source: "demo",
+        receivedAt: t,
+      };
       batch.push(last);
       if (batch.length >= 5_000) {
         total += insertReadings(batch);

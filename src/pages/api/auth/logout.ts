@@ -9,7 +9,11 @@ export const POST: APIRoute = endpoint(async (ctx) => {
   const { locals, cookies, url, request } = ctx;
   if (locals.sessionId) {
     await endSession(locals.sessionId);
-    writeAudit(auditActor(ctx), { action: "auth.signed_out", entityType: "user", entityId: locals.user?.id });
+    writeAudit(auditActor(ctx), {
+      action: "auth.signed_out",
+      entityType: "user",
+      entityId: locals.user?.id,
+    });
   }
   const blank = clearedSessionCookie(url);
   cookies.set(blank.name, blank.value, blank.attributes);

@@ -1,7 +1,13 @@
 import type { APIRoute } from "astro";
 import { profilePatchBody } from "@/lib/schemas/users";
 import { writeAudit } from "@/lib/server/db/queries/audit";
-import { findUserByEmail, getUser, publicUser, updateUser, type UserPatch } from "@/lib/server/db/queries/users";
+import {
+  findUserByEmail,
+  getUser,
+  publicUser,
+  updateUser,
+  type UserPatch,
+} from "@/lib/server/db/queries/users";
 import { auditActor, endpoint, requireUser } from "@/lib/server/http/guard";
 import { parseBody } from "@/lib/server/http/parse";
 import { conflict, json } from "@/lib/server/http/responses";
@@ -23,12 +29,21 @@ export const PATCH: APIRoute = endpoint(async (ctx) => {
   const patch: UserPatch = { ...rest };
   if (notify_sms !== undefined || notify_email !== undefined) {
     const prev = JSON.parse(current.notifyJson) as { sms?: boolean; email?: boolean };
-    patch.notifyJson = JSON.stringify({ ...prev, ...(notify_sms !== undefined && { sms: notify_sms }), ...(notify_email !== undefined && { email: notify_email }) });
+    patch.notifyJson = JSON.stringify({
+      ...prev,
+      ...(notify_sms !== undefined && { sms: notify_sms }),
+      ...(notify_email !== undefined && { email: notify_email }),
+    });
   }
   const updated = updateUser(me.id, patch)!;
   const changed = Object.keys(parsed.data);
   if (changed.some((k) => k !== "theme")) {
-    writeAudit(auditActor(ctx), { action: "user.profile_changed", entityType: "user", entityId: me.id, detail: { fields: changed } });
+    writeAudit(auditActor(ctx), {
+      action: "user.profile_changed",
+      entityType: "user",
+      entityId: me.id,
+      detail: { fields: changed },
+    });
   }
   return json(publicUser(updated));
 });

@@ -28,6 +28,11 @@ export const POST: APIRoute = endpoint(async (ctx) => {
     passwordHash: await hashPassword(body.password ?? oneTime!),
     mustChangePassword: oneTime !== null,
   });
-  writeAudit(auditActor(ctx), { action: "user.created", entityType: "user", entityId: user.id, detail: { email: user.email, role: user.role } });
+  writeAudit(auditActor(ctx), {
+    action: "user.created",
+    entityType: "user",
+    entityId: user.id,
+    detail: { email: user.email, role: user.role },
+  });
   return json({ ...publicUser(user), ...(oneTime && { temporary_password: oneTime }) }, 201);
 });

@@ -8,7 +8,12 @@ export type SensorRow = typeof sensors.$inferSelect;
 export function listAreasWithSensors() {
   const db = getDb();
   const areaRows = db.select().from(areas).orderBy(asc(areas.sortOrder), asc(areas.name)).all();
-  const sensorRows = db.select().from(sensors).where(ne(sensors.status, "retired")).orderBy(asc(sensors.id)).all();
+  const sensorRows = db
+    .select()
+    .from(sensors)
+    .where(ne(sensors.status, "retired"))
+    .orderBy(asc(sensors.id))
+    .all();
   return {
     areas: areaRows.map((a) => ({ ...a, sensors: sensorRows.filter((s) => s.areaId === a.id) })),
     unplaced: sensorRows.filter((s) => s.areaId === null),
@@ -67,7 +72,9 @@ export function listOpenPours(): PourSummary[] {
     .all();
   return rows.map((r) => ({
     ...r,
-    products: products.filter((p) => p.pourId === r.id).map(({ product, pieceCount }) => ({ product, pieceCount })),
+    products: products
+      .filter((p) => p.pourId === r.id)
+      .map(({ product, pieceCount }) => ({ product, pieceCount })),
     sensors: assigned.filter((s) => s.pourId === r.id).map(({ pourId: _p, ...s }) => s),
   }));
 }

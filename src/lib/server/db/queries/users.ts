@@ -25,7 +25,12 @@ export function listUsers(): UserRow[] {
 }
 
 export function countUsers(): number {
-  return getDb().select({ n: sql<number>`count(*)` }).from(users).get()?.n ?? 0;
+  return (
+    getDb()
+      .select({ n: sql<number>`count(*)` })
+      .from(users)
+      .get()?.n ?? 0
+  );
 }
 
 export function countActiveManagers(): number {

@@ -47,20 +47,17 @@ export const sessions = sqliteTable(
 );
 
 /** Keys for scripts (the public API). Only a SHA-256 of the key is kept. */
-export const apiTokens = sqliteTable(
-  "api_tokens",
-  {
-    id: integer("id").primaryKey({ autoIncrement: true }),
-    name: text("name").notNull(),
-    keyHash: text("key_hash").notNull().unique(),
-    keyPrefix: text("key_prefix").notNull(),
-    role: text("role", { enum: roleValues }).notNull(),
-    createdBy: integer("created_by").references(() => users.id),
-    createdAt: createdAtMs(),
-    lastUsedAt: epochMs("last_used_at"),
-    revokedAt: epochMs("revoked_at"),
-  },
-);
+export const apiTokens = sqliteTable("api_tokens", {
+  id: integer("id").primaryKey({ autoIncrement: true }),
+  name: text("name").notNull(),
+  keyHash: text("key_hash").notNull().unique(),
+  keyPrefix: text("key_prefix").notNull(),
+  role: text("role", { enum: roleValues }).notNull(),
+  createdBy: integer("created_by").references(() => users.id),
+  createdAt: createdAtMs(),
+  lastUsedAt: epochMs("last_used_at"),
+  revokedAt: epochMs("revoked_at"),
+});
 
 /** Sensor gateways: they may only send readings (HTTP bearer key or MQTT name + key). */
 export const gateways = sqliteTable("gateways", {

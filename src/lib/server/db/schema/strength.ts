@@ -162,7 +162,10 @@ export const cylinderBreaks = sqliteTable(
     enteredBy: integer("entered_by").references(() => users.id),
     createdAt: createdAtMs(),
   },
-  (t) => [index("cylinder_breaks_pour_idx").on(t.pourId), index("cylinder_breaks_mix_idx").on(t.mixId)],
+  (t) => [
+    index("cylinder_breaks_pour_idx").on(t.pourId),
+    index("cylinder_breaks_mix_idx").on(t.mixId),
+  ],
 );
 
 /** A strip or ship sign-off, with what it rested on. Never edited once made. */

@@ -14,15 +14,26 @@ export const POST: APIRoute = endpoint(async (ctx) => {
   if (!parsed.ok) return parsed.response;
   const user = getUser(me.id)!;
   if (!(await verifyPassword(user.passwordHash, parsed.data.current_password))) {
-    return badRequest("The current password is not right.", [{ field: "current_password", error: "Not your current password" }]);
+    return badRequest("The current password is not right.", [
+      { field: "current_password", error: "Not your current password" },
+    ]);
   }
   if (parsed.data.new_password === parsed.data.current_password) {
-    return badRequest("Choose a new password.", [{ field: "new_password", error: "Same as the current password" }]);
+    return badRequest("Choose a new password.", [
+      { field: "new_password", error: "Same as the current password" },
+    ]);
   }
-  updateUser(me.id, { passwordHash: await hashPassword(parsed.data.new_password), mustChangePassword: false });
+  updateUser(me.id, {
+    passwordHash: await hashPassword(parsed.data.new_password),
+    mustChangePassword: false,
+  });
   await endSessionsOfUser(me.id);
   const cookie = await startSession(me.id, ctx.url);
   ctx.cookies.set(cookie.name, cookie.value, cookie.attributes);
-  writeAudit(auditActor(ctx), { action: "user.password_changed", entityType: "user", entityId: me.id });
+  writeAudit(auditActor(ctx), {
+    action: "user.password_changed",
+    entityType: "user",
+    entityId: me.id,
+  });
   return noContent();
 });

@@ -15,6 +15,11 @@ export const POST: APIRoute = endpoint(async (ctx) => {
   const oneTime = temporaryPassword();
   updateUser(target.id, { passwordHash: await hashPassword(oneTime), mustChangePassword: true });
   await endSessionsOfUser(target.id);
-  writeAudit(auditActor(ctx), { action: "user.password_reset", entityType: "user", entityId: target.id, detail: { email: target.email } });
+  writeAudit(auditActor(ctx), {
+    action: "user.password_reset",
+    entityType: "user",
+    entityId: target.id,
+    detail: { email: target.email },
+  });
   return json({ id: target.id, temporary_password: oneTime });
 });

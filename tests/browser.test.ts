@@ -1,0 +1,151 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { Page } from "playwright-core";
+import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
+import { startPlinth, type RunningPlinth } from "./helpers/server";
+
+// Headless Chromium against the built server: the operator on a phone, the manager at a
+// desk, light and dark. Screenshots are kept in test-results/screenshots/.
+const available = chromiumAvailable();
+let plinth: RunningPlinth;
+
+beforeAll(async () => {
+  if (available) plinth = await startPlinth();
+});
+afterAll(async () => {
+  await plinth?.stop();
+});
+
+async function signInByKeyboard(page: Page, email: string) {
+  await page.goto(`${plinth.url}/login`);
+  await expect.poll(() => page.evaluate(() => document.activeElement?.id)).toBe("email");
+  await page.keyboard.type(email);
+  await page.keyboard.press("Tab");
+  await page.keyboard.type("demo-plinth-pass");
+  await page.keyboard.press("Enter");
+  await page.waitForURL(`${plinth.url}/`);
+}
+
+/** Inputs, selects and text areas with no accessible label. */
+function unlabelled(page: Page) {
+  return page.evaluate(() =>
+    [...document.querySelectorAll("input:not([type=hidden]), select, textarea")]
+      .filter((el) => {
+        const e = el as HTMLInputElement;
+        return (
+          !(e.labels && e.labels.length > 0) &&
+          !e.getAttribute("aria-label") &&
+          !e.getAttribute("aria-labelledby")
+        );
+      })
+      .map((el) => el.outerHTML.slice(0, 80)),
+  );
+}
+
+const bodyBackground = (page: Page) =>
+  page.evaluate(() => getComputedStyle(document.documentElement).backgroundColor);
+const luminance = (rgb: string) => {
+  const [r, g, b] = rgb.match(/\d+/g)!.map(Number) as [number, number, number];
+  return (0.2126 * r + 0.7152 * g + 0.0722 * b) / 255;
+};
+
+describe.skipIf(!available)("in the browser", () => {
+  for (const scheme of ["light", "dark"] as const) {
+    it(`the operator signs in on a phone (${scheme}) and lands on the shift page`, async () => {
+      const { context, close } = await openBrowser({
+        width: 390,
+        height: 844,
+        mobile: true,
+        colorScheme: scheme,
+      });
+      try {
+        const page = await context.newPage();
+        await page.goto(`${plinth.url}/login`);
+        expect(await unlabelled(page)).toEqual([]);
+        await page.screenshot({ path: screenshotPath(`login-phone-${scheme}`), fullPage: true });
+        await signInByKeyboard(page, "operator@example.com");
+        await expect.poll(() => page.locator("h1").textContent()).toBe("On shift");
+        const nav = await page.locator("nav[aria-label=Main]").textContent();
+        expect(nav).not.toContain("Team");
+        expect(nav).not.toContain("Audit");
+        await expect.poll(() => page.getByText("P-2611-04").count()).toBeGreaterThan(0);
+        // Nothing wider than the phone.
+        expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(
+          390,
+        );
+        const lum = luminance(await bodyBackground(page));
+        if (scheme === "dark") expect(lum).toBeLessThan(0.2);
+        else expect(lum).toBeGreaterThan(0.8);
+        await page.screenshot({ path: screenshotPath(`operator-phone-${scheme}`), fullPage: true });
+
+        await page.goto(`${plinth.url}/team`);
+        expect(await page.locator("h1").textContent()).toBe("This page is not open to your role");
+      } finally {
+        await close();
+      }
+    });
+
+    it(`the manager signs in at a desk (${scheme}), adds a person and reads the audit log`, async () => {
+      const { context, close } = await openBrowser({
+        width: 1440,
+        height: 900,
+        colorScheme: scheme,
+      });
+      try {
+        const page = await context.newPage();
+        await signInByKeyboard(page, "manager@example.com");
+        await expect.poll(() => page.locator("h1").textContent()).toBe("Plant overview");
+        await page.screenshot({
+          path: screenshotPath(`manager-desktop-${scheme}`),
+          fullPage: true,
+        });
+
+        await page.getByRole("link", { name: "Team", exact: true }).click();
+        await page.waitForURL(`${plinth.url}/team`);
+        await page.locator("astro-island:not([ssr])").first().waitFor(); // hydrated
+        expect(await unlabelled(page)).toEqual([]);
+        await page.getByLabel("Name", { exact: true }).fill(`Night Hand ${scheme}`);
+        await page.getByLabel("E-mail", { exact: true }).fill(`night.${scheme}@example.com`);
+        await page.getByLabel("Role", { exact: true }).selectOption("operator");
+        await page.getByRole("button", { name: "Add person" }).click();
+        await expect
+          .poll(() => page.getByTestId("one-time-password").textContent())
+          .toMatch(/^[a-z2-9]{4}(-[a-z2-9]{4}){3}$/);
+        await page.screenshot({ path: screenshotPath(`manager-team-${scheme}`), fullPage: true });
+
+        await page.getByRole("link", { name: "Audit log" }).first().click();
+        await page.waitForURL(`${plinth.url}/audit`);
+        await expect.poll(() => page.getByText("Person added").count()).toBeGreaterThan(0);
+        await page.screenshot({ path: screenshotPath(`manager-audit-${scheme}`), fullPage: false });
+
+        await page.goto(`${plinth.url}/account`);
+        expect(await unlabelled(page)).toEqual([]);
+        await page.screenshot({
+          path: screenshotPath(`manager-account-${scheme}`),
+          fullPage: true,
+        });
+      } finally {
+        await close();
+      }
+    });
+  }
+
+  it("switches to the dark theme from the header and keeps it", async () => {
+    const { context, close } = await openBrowser({
+      width: 1440,
+      height: 900,
+      colorScheme: "light",
+    });
+    try {
+      const page = await context.newPage();
+      await signInByKeyboard(page, "qc@example.com");
+      expect(luminance(await bodyBackground(page))).toBeGreaterThan(0.8);
+      await page.locator("[data-theme-switch]").click(); // system -> dark
+      await page.waitForLoadState("load");
+      await expect.poll(async () => luminance(await bodyBackground(page))).toBeLessThan(0.2);
+      await page.goto(`${plinth.url}/account`);
+      expect(await page.evaluate(() => document.documentElement.dataset.theme)).toBe("dark");
+    } finally {
+      await close();
+    }
+  });
+});
