@@ -1,8 +1,9 @@
 import js from "@eslint/js";
+import { defineConfig } from "eslint/config";
 import globals from "globals";
 import tseslint from "typescript-eslint";
 
-export default tseslint.config(
+export default defineConfig(
   { ignores: ["dist/", ".astro/", "node_modules/", "drizzle/", "test-results/", "data/"] },
   js.configs.recommended,
   ...tseslint.configs.recommended,

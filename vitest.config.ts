@@ -11,6 +11,7 @@ export default defineConfig({
         resolve: { alias },
         test: {
           name: "unit",
+          sequence: { groupOrder: 0 },
           include: ["src/**/*.test.ts", "simulator/**/*.test.ts", "scripts/**/*.test.ts"],
           environment: "node",
         },
@@ -19,6 +20,7 @@ export default defineConfig({
         resolve: { alias },
         test: {
           name: "integration",
+          sequence: { groupOrder: 1 },
           include: ["tests/**/*.test.ts"],
           environment: "node",
           globalSetup: ["tests/setup/build.ts"],
