@@ -6,6 +6,8 @@ import plinthServices from "./src/integrations/services.mjs";
 
 export default defineConfig({
   output: "server",
+  // PLINTH_DIST_DIR lets two builds (two engineers' test runs) live side by side.
+  outDir: process.env.PLINTH_DIST_DIR ?? "./dist",
   adapter: node({ mode: "standalone" }),
   integrations: [react(), plinthServices()],
   security: {

@@ -4,7 +4,7 @@ import globals from "globals";
 import tseslint from "typescript-eslint";
 
 export default defineConfig(
-  { ignores: ["dist/", ".astro/", "node_modules/", "drizzle/", "test-results/", "data/"] },
+  { ignores: ["dist/", "dist-*/", ".astro/", "node_modules/", "drizzle/", "test-results/", "data/"] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {

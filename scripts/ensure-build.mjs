@@ -6,6 +6,8 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 
 export const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+/** The build folder: dist/, or PLINTH_DIST_DIR (relative to the project). */
+export const distDir = path.resolve(root, process.env.PLINTH_DIST_DIR ?? "dist");
 
 function newestMtime(dir) {
   let newest = 0;
@@ -20,8 +22,8 @@ function newestMtime(dir) {
 
 /** True when the server build is present and newer than every source file. */
 export function buildIsFresh() {
-  const entry = path.join(root, "dist", "server", "entry.mjs");
-  const services = path.join(root, "dist", "server", "services.mjs");
+  const entry = path.join(distDir, "server", "entry.mjs");
+  const services = path.join(distDir, "server", "services.mjs");
   if (!fs.existsSync(entry) || !fs.existsSync(services)) return false;
   const built = fs.statSync(entry).mtimeMs;
   const sources = Math.max(

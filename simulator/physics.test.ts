@@ -1,5 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { bagRhPct, binTempC, concreteCoreTempC, hydrationRiseC, noise, outdoorTempC } from "./physics";
+import {
+  bagRhPct,
+  binTempC,
+  concreteCoreTempC,
+  hydrationRiseC,
+  noise,
+  outdoorTempC,
+} from "./physics";
 
 const profile = { placingTempC: 22, peakRiseC: 20, peakAgeH: 12 };
 

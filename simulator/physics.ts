@@ -29,7 +29,12 @@ export function noise(key: string, step: number): number {
  * Outdoor air: a daily swing around a mean, coldest near 6 a.m. and warmest near 3 p.m.
  * local time. `utcOffsetH` places the plant's clock.
  */
-export function outdoorTempC(tMs: number, meanC: number, swingC: number, utcOffsetH: number): number {
+export function outdoorTempC(
+  tMs: number,
+  meanC: number,
+  swingC: number,
+  utcOffsetH: number,
+): number {
   const localH = (((tMs / HOUR_MS + utcOffsetH) % 24) + 24) % 24;
   // cosine with its peak at 15:00
   return meanC + swingC * Math.cos(((localH - 15) / 24) * 2 * Math.PI);
@@ -60,7 +65,11 @@ export function hydrationRiseC(ageH: number, p: HydrationProfile): number {
 }
 
 /** The core of a piece: placing temperature relaxing to the enclosure, plus hydration heat. */
-export function concreteCoreTempC(ageH: number, surroundingsC: number, p: HydrationProfile): number {
+export function concreteCoreTempC(
+  ageH: number,
+  surroundingsC: number,
+  p: HydrationProfile,
+): number {
   const relax = Math.exp(-Math.max(0, ageH) / 5);
   return surroundingsC + (p.placingTempC - surroundingsC) * relax + hydrationRiseC(ageH, p);
 }
@@ -74,7 +83,12 @@ export function bagTempC(coreC: number, surroundingsC: number): number {
  * Humidity under a cure bag. Wet pads hold it near saturation; once the pads dry
  * (`dryFromMs`), it falls toward the room's humidity over a few hours.
  */
-export function bagRhPct(tMs: number, roomRhPct: number, dryFromMs: number | null, wetRhPct = 97.5): number {
+export function bagRhPct(
+  tMs: number,
+  roomRhPct: number,
+  dryFromMs: number | null,
+  wetRhPct = 97.5,
+): number {
   if (dryFromMs === null || tMs < dryFromMs) return wetRhPct;
   const h = (tMs - dryFromMs) / HOUR_MS;
   return roomRhPct + (wetRhPct - roomRhPct) * Math.exp(-h / 2.5);

@@ -55,14 +55,58 @@ function range(prefix: string, from: number, to: number): string[] {
 }
 
 export const demoSensors: DemoSensor[] = [
-  ...range("CB", 1, 12).map((id, i) => ({ id, label: `Bag ${i + 1}, room 1`, kind: "bag" as const, area: "Cure Room 1" })),
-  ...range("CB", 13, 24).map((id, i) => ({ id, label: `Bag ${i + 1}, room 2`, kind: "bag" as const, area: "Cure Room 2" })),
-  ...range("EP", 1, 4).map((id, i) => ({ id, label: `Probe ${i + 1}, room 1`, kind: "embedded" as const, area: "Cure Room 1" })),
-  ...range("EP", 5, 8).map((id, i) => ({ id, label: `Probe ${i + 1}, room 2`, kind: "embedded" as const, area: "Cure Room 2" })),
-  { id: "AB-01", label: "Bin 1, concrete sand", kind: "bin", area: "Aggregate Bins", material: "fine" },
-  { id: "AB-02", label: "Bin 2, 3/4 in. stone", kind: "bin", area: "Aggregate Bins", material: "coarse" },
-  { id: "AB-03", label: "Bin 3, 3/8 in. chip", kind: "bin", area: "Aggregate Bins", material: "coarse" },
-  { id: "AB-04", label: "Bin 4, mason sand", kind: "bin", area: "Aggregate Bins", material: "fine" },
+  ...range("CB", 1, 12).map((id, i) => ({
+    id,
+    label: `Bag ${i + 1}, room 1`,
+    kind: "bag" as const,
+    area: "Cure Room 1",
+  })),
+  ...range("CB", 13, 24).map((id, i) => ({
+    id,
+    label: `Bag ${i + 1}, room 2`,
+    kind: "bag" as const,
+    area: "Cure Room 2",
+  })),
+  ...range("EP", 1, 4).map((id, i) => ({
+    id,
+    label: `Probe ${i + 1}, room 1`,
+    kind: "embedded" as const,
+    area: "Cure Room 1",
+  })),
+  ...range("EP", 5, 8).map((id, i) => ({
+    id,
+    label: `Probe ${i + 1}, room 2`,
+    kind: "embedded" as const,
+    area: "Cure Room 2",
+  })),
+  {
+    id: "AB-01",
+    label: "Bin 1, concrete sand",
+    kind: "bin",
+    area: "Aggregate Bins",
+    material: "fine",
+  },
+  {
+    id: "AB-02",
+    label: "Bin 2, 3/4 in. stone",
+    kind: "bin",
+    area: "Aggregate Bins",
+    material: "coarse",
+  },
+  {
+    id: "AB-03",
+    label: "Bin 3, 3/8 in. chip",
+    kind: "bin",
+    area: "Aggregate Bins",
+    material: "coarse",
+  },
+  {
+    id: "AB-04",
+    label: "Bin 4, mason sand",
+    kind: "bin",
+    area: "Aggregate Bins",
+    material: "fine",
+  },
   { id: "AM-01", label: "Room 1 air", kind: "ambient", area: "Cure Room 1" },
   { id: "AM-02", label: "Room 2 air", kind: "ambient", area: "Cure Room 2" },
   { id: "AM-03", label: "Yard air", kind: "ambient", area: "Yard" },
@@ -242,7 +286,10 @@ export function demoReading(sensor: DemoSensor, tMs: number, nowMs: number): Sen
   const castMs = pour ? nowMs - pour.castHoursAgo * HOUR_MS : null;
   if (!pour || castMs === null || tMs < castMs) {
     const rh = sensor.kind === "bag" ? demoPlant.roomRhPct + 5 : null;
-    return { tempC: round1(roomC + jitter(0.2)), rhPct: rh === null ? null : round1(rh + jitter(1)) };
+    return {
+      tempC: round1(roomC + jitter(0.2)),
+      rhPct: rh === null ? null : round1(rh + jitter(1)),
+    };
   }
   const mix = demoMixes.find((m) => m.name === pour.mix)!;
   const ageH = (tMs - castMs) / HOUR_MS;

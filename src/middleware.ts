@@ -94,6 +94,11 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
     }
     return withSecurityHeaders(unauthorized());
   }
+  if (need === "gateway") {
+    if (p.kind !== "gateway")
+      return withSecurityHeaders(forbidden("Only a gateway's key may send readings here."));
+    return withSecurityHeaders(await next());
+  }
   if (p.kind === "gateway") {
     return withSecurityHeaders(forbidden("Gateway keys may only send readings."));
   }

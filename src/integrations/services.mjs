@@ -4,6 +4,9 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 
 const servicesEntry = fileURLToPath(new URL("../lib/server/services.ts", import.meta.url));
+// The demo's live feed: the simulator, built beside the services so `npm run demo` runs it
+// in the same process (it talks to the broker over loopback like any gateway).
+const simulatorEntry = fileURLToPath(new URL("../../simulator/index.ts", import.meta.url));
 
 /** @returns {import("astro").AstroIntegration} */
 export default function plinthServices() {
@@ -20,6 +23,7 @@ export default function plinthServices() {
           buildStart() {
             // dist/server/services.mjs shares the page chunks: one bus, one database handle.
             this.emitFile({ type: "chunk", id: servicesEntry, fileName: "services.mjs" });
+            this.emitFile({ type: "chunk", id: simulatorEntry, fileName: "simulator.mjs" });
           },
         });
       },

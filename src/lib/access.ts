@@ -47,13 +47,15 @@ type Method = "GET" | "POST" | "PATCH" | "PUT" | "DELETE";
 
 /**
  * One route (page or API) as Astro names it under src/pages, with the action each method
- * needs. "public" needs nobody; "session" needs any signed-in user.
+ * needs. "public" needs nobody; "session" needs any signed-in user; "gateway" needs a
+ * gateway's key (and only a gateway's).
  */
+export type Requirement = Action | "public" | "session" | "gateway";
 export interface RouteAccess {
   /** Astro route pattern, e.g. "/api/v1/users/[id]". */
   route: string;
   kind: "page" | "api";
-  methods: Partial<Record<Method, Action | "public" | "session">>;
+  methods: Partial<Record<Method, Requirement>>;
   /** For the role-matrix test: a concrete path to call (defaults to the route). */
   sample?: string;
   /** The status a permitted caller gets, where it is not 200 (the "not for your role" page). */
@@ -68,6 +70,16 @@ export const routeAccess: readonly RouteAccess[] = [
   { route: "/forbidden", kind: "page", methods: { GET: "session" }, permittedStatus: 403 },
   { route: "/team", kind: "page", methods: { GET: "users.manage" } },
   { route: "/audit", kind: "page", methods: { GET: "audit.read" } },
+  { route: "/floor", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/sensors", kind: "page", methods: { GET: "plant.read" } },
+  {
+    route: "/sensors/[id]",
+    kind: "page",
+    methods: { GET: "plant.read" },
+    sample: "/sensors/CB-07",
+  },
+  { route: "/gateways", kind: "page", methods: { GET: "plant.admin" } },
+  { route: "/uploads", kind: "page", methods: { GET: "plant.read" } },
   // Sign-in API
   { route: "/api/auth/login", kind: "api", methods: { POST: "public" } },
   { route: "/api/auth/logout", kind: "api", methods: { POST: "session" } },
@@ -89,6 +101,49 @@ export const routeAccess: readonly RouteAccess[] = [
     sample: "/api/v1/users/999999/password-reset",
   },
   { route: "/api/v1/audit", kind: "api", methods: { GET: "audit.read" } },
+  // Readings in (gateways only)
+  { route: "/api/v1/readings", kind: "api", methods: { POST: "gateway" } },
+  // The live floor: server-sent events of readings as they are committed
+  { route: "/api/v1/live", kind: "api", methods: { GET: "plant.read" } },
+  // Sensors and areas
+  { route: "/api/v1/areas", kind: "api", methods: { GET: "plant.read", POST: "plant.admin" } },
+  { route: "/api/v1/sensors", kind: "api", methods: { GET: "plant.read" } },
+  {
+    route: "/api/v1/sensors/[id]",
+    kind: "api",
+    methods: { GET: "plant.read", PATCH: "plant.admin" },
+    sample: "/api/v1/sensors/CB-07",
+  },
+  {
+    route: "/api/v1/sensors/[id]/readings",
+    kind: "api",
+    methods: { GET: "plant.read" },
+    sample: "/api/v1/sensors/CB-07/readings",
+  },
+  {
+    route: "/api/v1/sensors/[id]/calibrations",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "quality.manage" },
+    sample: "/api/v1/sensors/CB-07/calibrations",
+  },
+  // Gateways and API tokens
+  { route: "/api/v1/gateways", kind: "api", methods: { GET: "plant.admin", POST: "plant.admin" } },
+  {
+    route: "/api/v1/gateways/[id]/revoke",
+    kind: "api",
+    methods: { POST: "plant.admin" },
+    sample: "/api/v1/gateways/999999/revoke",
+  },
+  { route: "/api/v1/tokens", kind: "api", methods: { GET: "plant.admin", POST: "plant.admin" } },
+  {
+    route: "/api/v1/tokens/[id]/revoke",
+    kind: "api",
+    methods: { POST: "plant.admin" },
+    sample: "/api/v1/tokens/999999/revoke",
+  },
+  // Logger uploads
+  { route: "/api/v1/uploads", kind: "api", methods: { GET: "plant.read", POST: "floor.operate" } },
+  { route: "/api/v1/uploads/preview", kind: "api", methods: { POST: "floor.operate" } },
 ];
 
 const compiled = routeAccess.map((r) => ({
@@ -109,10 +164,7 @@ export function findRouteAccess(pathname: string): RouteAccess | undefined {
 }
 
 /** What a method on a route requires; undefined means the method is not offered there. */
-export function requirementFor(
-  access: RouteAccess,
-  method: string,
-): Action | "public" | "session" | undefined {
+export function requirementFor(access: RouteAccess, method: string): Requirement | undefined {
   const m = (method === "HEAD" ? "GET" : method) as Method;
   return access.methods[m];
 }
@@ -120,6 +172,10 @@ export function requirementFor(
 /** Navigation: each role sees only the pages it may open. */
 export const navigation: readonly { href: string; label: string; action: Action }[] = [
   { href: "/", label: "Plant", action: "plant.read" },
+  { href: "/floor", label: "Live floor", action: "plant.read" },
+  { href: "/sensors", label: "Sensors", action: "plant.read" },
+  { href: "/uploads", label: "Logger files", action: "plant.read" },
+  { href: "/gateways", label: "Gateways", action: "plant.admin" },
   { href: "/team", label: "Team", action: "users.manage" },
   { href: "/audit", label: "Audit log", action: "audit.read" },
 ];

@@ -13,6 +13,14 @@ const labels: Record<string, string> = {
   "user.password_changed": "Own password changed",
   "user.password_reset": "Password reset by a manager",
   "demo.seeded": "Demo plant created",
+  "gateway.created": "Gateway added",
+  "gateway.revoked": "Gateway revoked",
+  "api_token.created": "API token made",
+  "api_token.revoked": "API token revoked",
+  "sensor.updated": "Sensor named, placed or retired",
+  "sensor.calibration_recorded": "Calibration check recorded",
+  "area.created": "Area added",
+  "upload.imported": "Logger file imported",
 };
 
 export function auditLabel(action: string): string {

@@ -60,6 +60,8 @@ export async function startPlinth(options: StartOptions = {}): Promise<RunningPl
         MQTT_PORT: String(mqttPort),
         DATABASE_PATH: dbPath,
         LOG_LEVEL: "warn",
+        // The demo's live feed would race the tests' own readings.
+        PLINTH_SIMULATOR: "0",
         ...options.env,
       },
       stdio: ["ignore", "pipe", "pipe"],

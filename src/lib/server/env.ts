@@ -12,6 +12,7 @@ const envSchema = z.object({
   MQTT_PORT: z.coerce.number().int().min(0).max(65535).default(1883),
   MQTT_HOST: z.string().default("127.0.0.1"),
   MQTT_URL: z.string().optional(),
+  MQTT_CLIENT_ID: z.string().min(1).default("plinth-ingest"),
   PLINTH_DEMO: z.enum(["0", "1"]).default("0"),
   SESSION_DAYS: z.coerce.number().positive().default(14),
   COOKIE_SECURE: z.enum(["auto", "true", "false"]).default("auto"),

@@ -7,6 +7,6 @@ import { json } from "@/lib/server/http/responses";
 export const GET: APIRoute = () => {
   const db = pingDatabase() ? "ok" : "down";
   const { mqtt } = servicesHealth();
-  const ok = db === "ok" && mqtt !== "down";
+  const ok = db === "ok" && mqtt === "ok";
   return json({ ok, db, mqtt }, ok ? 200 : 503, { "cache-control": "no-store" });
 };

@@ -10,8 +10,8 @@ describe("sign-in throttling", () => {
 
   it("refuses after the limit until the oldest counted failure leaves the window", () => {
     expect(retryAfterMs([0, 1000, 2000], 3000, policy)).toBe(57_000);
-    expect(retryAfterMs([0, 1000, 2000], 60_000, policy)).toBe(1000);
-    expect(retryAfterMs([0, 1000, 2000], 61_000, policy)).toBe(0);
+    expect(retryAfterMs([0, 1000, 2000], 59_000, policy)).toBe(1000);
+    expect(retryAfterMs([0, 1000, 2000], 60_000, policy)).toBe(0);
   });
 
   it("counts each key apart and clears a key on success", () => {

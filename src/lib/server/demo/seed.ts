@@ -26,9 +26,11 @@ import {
   pourProducts,
   pourSensors,
   pours,
+  sensorCalibrations,
   sensors,
   users,
 } from "../db/schema";
+import { nextCalibrationDue } from "@/domain/calibration";
 import { log } from "../log";
 
 export const DEMO_PASSWORD = "demo-plinth-pass";
@@ -107,6 +109,26 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
     }
 
     const qc = tx.select().from(users).where(eq(users.email, "qc@example.com")).get()!;
+
+    // Invented reference-thermometer checks: most sensors checked in the last few months,
+    // two left overdue so the sensors page has something to flag.
+    demoSensors.forEach((s, i) => {
+      const overdue = s.id === "CB-22" || s.id === "EP-08";
+      const checkedAt = nowMs - (overdue ? 215 : 20 + ((i * 7) % 120)) * 24 * HOUR_MS;
+      tx.insert(sensorCalibrations)
+        .values({
+          sensorId: s.id,
+          checkedAt,
+          checkedBy: qc.id,
+          referenceTempC: 20,
+          sensorTempC: 20,
+          tempOffsetC: 0,
+          rhOffsetPct: 0,
+          nextDueAt: nextCalibrationDue(checkedAt),
+          note: "Ice-point and warm-bath check against the lab reference thermometer",
+        })
+        .run();
+    });
     const operator = tx.select().from(users).where(eq(users.email, "operator@example.com")).get()!;
 
     const mixIds = new Map<string, number>();

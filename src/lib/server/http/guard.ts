@@ -32,6 +32,15 @@ export function requireUser(locals: App.Locals, action: Action) {
   return p.user;
 }
 
+/** The calling gateway, or 401/403 for anyone else. */
+export function requireGateway(locals: App.Locals): Extract<Principal, { kind: "gateway" }> {
+  const p = locals.principal;
+  if (!p) throw new HttpError(unauthorized("Send the gateway's key as a bearer token."));
+  if (p.kind !== "gateway")
+    throw new HttpError(forbidden("Only a gateway's key may send readings here."));
+  return p;
+}
+
 /** The actor to write in the audit log for this caller. */
 export function auditActor(ctx: Pick<APIContext, "locals" | "clientAddress">) {
   const p = ctx.locals.principal;

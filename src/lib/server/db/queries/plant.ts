@@ -82,3 +82,19 @@ export function listOpenPours(): PourSummary[] {
 export function listMixes() {
   return getDb().select().from(mixes).where(eq(mixes.active, true)).orderBy(asc(mixes.name)).all();
 }
+
+/** When the pour with this code was cast (epoch ms), if there is one. */
+export function pourCastAt(code: string): number | undefined {
+  return getDb().select({ castAt: pours.castAt }).from(pours).where(eq(pours.code, code)).get()
+    ?.castAt;
+}
+
+/** The newest reading's time over all sensors, or null with none. */
+export function latestReadingTs(): number | null {
+  return (
+    getDb()
+      .select({ ts: sql<number | null>`max(${sensors.lastSeenAt})` })
+      .from(sensors)
+      .get()?.ts ?? null
+  );
+}

@@ -194,3 +194,35 @@ export const releases = sqliteTable(
   },
   (t) => [index("releases_pour_idx").on(t.pourId)],
 );
+
+/**
+ * The running maturity of one sensor's assignment to a pour, advanced as each reading
+ * arrives (see src/domain/maturity/accumulator.ts). A cache of what the readings say:
+ * it can always be rebuilt from them, and is when a late reading arrives.
+ */
+export const pourSensorMaturity = sqliteTable(
+  "pour_sensor_maturity",
+  {
+    assignmentId: integer("assignment_id")
+      .primaryKey()
+      .references(() => pourSensors.id, { onDelete: "cascade" }),
+    pourId: integer("pour_id")
+      .notNull()
+      .references(() => pours.id, { onDelete: "cascade" }),
+    sensorId: text("sensor_id").notNull(),
+    datumTempC: real("datum_temp_c").notNull(),
+    activationEnergyJMol: real("activation_energy_j_mol").notNull(),
+    firstTs: epochMs("first_ts"),
+    lastTs: epochMs("last_ts"),
+    lastTempC: real("last_temp_c"),
+    ttfCH: real("ttf_c_h").notNull().default(0),
+    equivalentAgeH: real("equivalent_age_h").notNull().default(0),
+    complete: bool("complete").notNull().default(false),
+    readingCount: integer("reading_count").notNull().default(0),
+    updatedAt: epochMs("updated_at").notNull(),
+  },
+  (t) => [
+    index("pour_sensor_maturity_pour_idx").on(t.pourId),
+    index("pour_sensor_maturity_sensor_idx").on(t.sensorId),
+  ],
+);

@@ -1,0 +1,111 @@
+import type { CleanReading } from "@/domain/readings";
+import { applyOffsets } from "@/domain/readings";
+import { getSqlite } from "../client";
+
+export interface StoreResult {
+  accepted: number;
+  duplicates: number;
+  /** Sensors seen for the first time, registered as new and unassigned. */
+  newSensors: string[];
+  /** The readings stored, with calibration offsets applied, and whether each is its sensor's newest. */
+  stored: (CleanReading & { latest: boolean })[];
+}
+
+export type ReadingSource = "http" | "mqtt" | "upload" | "demo";
+
+type Statements = ReturnType<typeof prepare>;
+const KEY = Symbol.for("plinth.ingest.statements");
+const g = globalThis as unknown as { [KEY]?: { db: object; s: Statements } };
+
+function prepare() {
+  const db = getSqlite();
+  return {
+    sensor: db.prepare<
+      [string],
+      { temp_offset_c: number; rh_offset_pct: number; last_seen_at: number | null }
+    >("select temp_offset_c, rh_offset_pct, last_seen_at from sensors where id = ?"),
+    register: db.prepare<[string, number, number | null]>(
+      "insert into sensors (id, status, created_at, last_gateway_id) values (?, 'new', ?, ?) on conflict do nothing",
+    ),
+    insert: db.prepare<[string, number, number, number | null, string, number]>(
+      "insert into readings (sensor_id, ts, temp_c, rh_pct, source, received_at) values (?, ?, ?, ?, ?, ?) on conflict do nothing",
+    ),
+    touch: db.prepare<
+      [number, number, number | null, number | null, number | null, string, number]
+    >(
+      `update sensors set last_seen_at = ?, last_temp_c = ?, last_rh_pct = ?,
+         battery_pct = coalesce(?, battery_pct), last_gateway_id = coalesce(?, last_gateway_id)
+       where id = ? and (last_seen_at is null or last_seen_at < ?)`,
+    ),
+    gatewayUsed: db.prepare<[number, number]>("update gateways set last_used_at = ? where id = ?"),
+  };
+}
+
+function statements(): Statements {
+  const db = getSqlite();
+  const cached = g[KEY];
+  if (cached && cached.db === db) return cached.s;
+  const s = prepare();
+  g[KEY] = { db, s };
+  return s;
+}
+
+/**
+ * Stores a batch of checked readings in one transaction: registers unknown sensors as new,
+ * applies each sensor's calibration offsets, skips a reading already stored for the same
+ * sensor and time (the first value stands), and moves each sensor's last-seen values forward
+ * only for readings newer than what it had. Returns when the transaction has committed.
+ */
+export function storeReadings(
+  readings: readonly CleanReading[],
+  source: ReadingSource,
+  opts: { gatewayId?: number | null; nowMs?: number } = {},
+): StoreResult {
+  const s = statements();
+  const nowMs = opts.nowMs ?? Date.now();
+  const gatewayId = opts.gatewayId ?? null;
+  const run = getSqlite().transaction((batch: readonly CleanReading[]) => {
+    const sensors = new Map<
+      string,
+      { tempOffset: number; rhOffset: number; lastSeen: number | null; newest: CleanReading | null }
+    >();
+    const newSensors: string[] = [];
+    const stored: (CleanReading & { latest: boolean })[] = [];
+    let duplicates = 0;
+    for (const raw of batch) {
+      let info = sensors.get(raw.sensorId);
+      if (!info) {
+        let row = s.sensor.get(raw.sensorId);
+        if (!row) {
+          s.register.run(raw.sensorId, nowMs, gatewayId);
+          newSensors.push(raw.sensorId);
+          row = { temp_offset_c: 0, rh_offset_pct: 0, last_seen_at: null };
+        }
+        info = {
+          tempOffset: row.temp_offset_c,
+          rhOffset: row.rh_offset_pct,
+          lastSeen: row.last_seen_at,
+          newest: null,
+        };
+        sensors.set(raw.sensorId, info);
+      }
+      const r = applyOffsets(raw, info.tempOffset, info.rhOffset);
+      const added = s.insert.run(r.sensorId, r.tsMs, r.tempC, r.rhPct, source, nowMs).changes;
+      if (added === 0) {
+        duplicates++;
+        continue;
+      }
+      stored.push({ ...r, latest: false });
+      if (!info.newest || r.tsMs > info.newest.tsMs) info.newest = r;
+    }
+    for (const [id, info] of sensors) {
+      const n = info.newest;
+      if (!n || (info.lastSeen !== null && n.tsMs <= info.lastSeen)) continue;
+      s.touch.run(n.tsMs, n.tempC, n.rhPct, n.batteryPct, gatewayId, id, n.tsMs);
+      for (const r of stored) if (r.sensorId === id && r.tsMs === n.tsMs) r.latest = true;
+    }
+    if (gatewayId !== null) s.gatewayUsed.run(nowMs, gatewayId);
+    return { accepted: stored.length, duplicates, newSensors, stored };
+  });
+  return run(readings);
+}
