@@ -101,6 +101,8 @@ export const routeAccess: readonly RouteAccess[] = [
     sample: "/api/v1/users/999999/password-reset",
   },
   { route: "/api/v1/audit", kind: "api", methods: { GET: "audit.read" } },
+  // The description of this API
+  { route: "/api/v1/openapi.json", kind: "api", methods: { GET: "public" } },
   // Readings in (gateways only)
   { route: "/api/v1/readings", kind: "api", methods: { POST: "gateway" } },
   // The live floor: server-sent events of readings as they are committed

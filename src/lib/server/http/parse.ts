@@ -9,6 +9,38 @@ export function fieldErrors(error: z.ZodError): FieldError[] {
   }));
 }
 
+/**
+ * Reads a request body, stopping as soon as it passes `limitBytes` (null then), so an
+ * oversized body without a content-length is never held in memory whole.
+ */
+export async function readBodyLimited(
+  request: Request,
+  limitBytes: number,
+): Promise<Uint8Array | null> {
+  if (Number(request.headers.get("content-length") ?? 0) > limitBytes) return null;
+  if (!request.body) return new Uint8Array(0);
+  const reader = request.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  for (;;) {
+    const { value, done } = await reader.read();
+    if (done) break;
+    total += value.byteLength;
+    if (total > limitBytes) {
+      await reader.cancel();
+      return null;
+    }
+    chunks.push(value);
+  }
+  const out = new Uint8Array(total);
+  let at = 0;
+  for (const c of chunks) {
+    out.set(c, at);
+    at += c.byteLength;
+  }
+  return out;
+}
+
 export type Parsed<T> = { ok: true; data: T } | { ok: false; response: Response };
 
 const DEFAULT_LIMIT_BYTES = 1024 * 1024;
@@ -23,16 +55,13 @@ export async function parseBody<S extends z.ZodType>(
   { limitBytes = DEFAULT_LIMIT_BYTES }: { limitBytes?: number } = {},
 ): Promise<Parsed<z.infer<S>>> {
   const type = (request.headers.get("content-type") ?? "").toLowerCase();
-  const declared = Number(request.headers.get("content-length") ?? "0");
-  if (declared > limitBytes) {
+  const bytes = await readBodyLimited(request, limitBytes);
+  if (bytes === null) {
     return { ok: false, response: payloadTooLarge(`The body is over ${limitBytes} bytes.`) };
   }
   let raw: unknown;
   try {
-    const text = await request.text();
-    if (Buffer.byteLength(text) > limitBytes) {
-      return { ok: false, response: payloadTooLarge(`The body is over ${limitBytes} bytes.`) };
-    }
+    const text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
     if (type.startsWith("application/x-www-form-urlencoded")) {
       raw = Object.fromEntries(new URLSearchParams(text));
     } else if (type === "" || type.includes("json")) {

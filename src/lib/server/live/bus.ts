@@ -17,9 +17,15 @@ export interface SensorEvent {
   change: "registered" | "updated" | "retired";
 }
 
+export interface GatewayEvent {
+  gatewayId: number;
+  change: "revoked";
+}
+
 interface BusEvents {
   readings: [ReadingEvent[]];
   sensor: [SensorEvent];
+  gateway: [GatewayEvent];
 }
 
 const KEY = Symbol.for("plinth.bus");

@@ -3,6 +3,7 @@ import net from "node:net";
 import { timingSafeEqual } from "node:crypto";
 import { findGatewayByName } from "../db/queries/gateways";
 import { hashKey } from "../auth";
+import { bus, type GatewayEvent } from "../live/bus";
 import { log } from "../log";
 import { ingestMqttMessage, isReadingsTopic } from "./messages";
 
@@ -56,6 +57,16 @@ export async function startEmbeddedBroker(host: string, port: number): Promise<E
     authorizeSubscribe: (_client, sub, done) =>
       done(new Error(`subscriptions are not offered (${sub.topic})`), null),
   });
+  // A revoked gateway's open connections end at once; its next sign-in is refused.
+  const onGateway = (e: GatewayEvent) => {
+    if (e.change !== "revoked") return;
+    for (const c of Object.values(
+      (broker as unknown as { clients: Record<string, { close: () => void }> }).clients,
+    )) {
+      if (gatewayOf.get(c) === e.gatewayId) c.close();
+    }
+  };
+  bus().on("gateway", onGateway);
   const server = net.createServer(broker.handle);
   await new Promise<void>((resolve, reject) => {
     server.once("error", reject);
@@ -67,6 +78,7 @@ export async function startEmbeddedBroker(host: string, port: number): Promise<E
     port: actual,
     close: () =>
       new Promise<void>((resolve) => {
+        bus().off("gateway", onGateway);
         broker.close(() => server.close(() => resolve()));
         for (const c of Object.values(
           (broker as unknown as { clients: Record<string, { conn?: net.Socket }> }).clients,

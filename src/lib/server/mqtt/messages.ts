@@ -35,10 +35,19 @@ export function ingestMqttMessage(
   }
   let answer: IngestAnswer;
   if (perSensor) {
-    answer = ingestReadings([body], "mqtt", {
-      gatewayId,
-      sensorFromTopic: decodeURIComponent(perSensor[1]!),
-    });
+    let sensorFromTopic: string;
+    try {
+      sensorFromTopic = decodeURIComponent(perSensor[1]!);
+    } catch {
+      // Acknowledged and dropped: sending it again would not mend it.
+      log.warn("mqtt message rejected: bad percent-encoding in the topic", { topic });
+      return {
+        accepted: 0,
+        duplicates: 0,
+        rejected: [{ index: 0, error: "the topic's sensor id is not valid percent-encoding" }],
+      };
+    }
+    answer = ingestReadings([body], "mqtt", { gatewayId, sensorFromTopic });
   } else {
     const readings = (body as { readings?: unknown } | null)?.readings;
     if (!Array.isArray(readings)) {

@@ -20,6 +20,8 @@ export function startSubscriber(url: string, clientId: string): Subscriber {
     connectTimeout: 10_000,
     protocolVersion: 4,
   });
+  let subscribed = false;
+  client.on("close", () => (subscribed = false));
   client.handleMessage = (packet, callback) => {
     try {
       ingestMqttMessage(packet.topic, packet.payload as Buffer, null);
@@ -34,15 +36,19 @@ export function startSubscriber(url: string, clientId: string): Subscriber {
       url: url.replace(/\/\/[^@]*@/, "//***@"),
       sessionPresent: ack.sessionPresent,
     });
-    if (!ack.sessionPresent) {
-      client.subscribe([READINGS_TOPIC, `${READINGS_TOPIC}/+`], { qos: 1 }, (err) => {
-        if (err) log.error("mqtt subscribe failed", { err });
-      });
+    if (ack.sessionPresent) {
+      subscribed = true;
+      return;
     }
+    client.subscribe([READINGS_TOPIC, `${READINGS_TOPIC}/+`], { qos: 1 }, (err) => {
+      if (err) log.error("mqtt subscribe failed", { err });
+      else subscribed = true;
+    });
   });
   client.on("error", (err) => log.warn("mqtt subscriber error", { err }));
   return {
-    connected: () => client.connected,
+    // Ready only once the subscription stands (or the broker kept Plinth's session).
+    connected: () => client.connected && subscribed,
     close: () => new Promise<void>((resolve) => client.end(false, {}, () => resolve())),
   };
 }

@@ -1,20 +1,11 @@
 import type { APIRoute } from "astro";
-import { z } from "zod";
-import { areaKindValues } from "@/lib/server/db/schema";
+import { areaCreateBody } from "@/lib/schemas/plant";
 import { insertArea } from "@/lib/server/db/queries/areas";
 import { writeAudit } from "@/lib/server/db/queries/audit";
 import { findAreaByName, listAreas } from "@/lib/server/db/queries/sensors";
 import { auditActor, endpoint, requireAction } from "@/lib/server/http/guard";
 import { parseBody } from "@/lib/server/http/parse";
 import { conflict, json } from "@/lib/server/http/responses";
-
-const areaCreateBody = z
-  .object({
-    name: z.string().trim().min(1).max(80),
-    kind: z.enum(areaKindValues),
-    description: z.string().trim().max(200).optional(),
-  })
-  .strict();
 
 export const GET: APIRoute = endpoint(async ({ locals }) => {
   requireAction(locals, "plant.read");

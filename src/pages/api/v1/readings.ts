@@ -1,6 +1,7 @@
 import type { APIRoute } from "astro";
 import { ingestReadings, MAX_BATCH_READINGS } from "@/lib/server/ingest/ingest";
 import { endpoint, requireGateway } from "@/lib/server/http/guard";
+import { readBodyLimited } from "@/lib/server/http/parse";
 import {
   badRequest,
   json,
@@ -19,12 +20,8 @@ export const POST: APIRoute = endpoint(async ({ request, locals }) => {
   const gateway = requireGateway(locals);
   const type = (request.headers.get("content-type") ?? "application/json").toLowerCase();
   if (!type.includes("json")) return unsupportedMediaType("Send application/json.");
-  if (Number(request.headers.get("content-length") ?? 0) > MAX_BODY_BYTES) {
-    return payloadTooLarge("A request may carry at most 1 MiB.");
-  }
-  const bytes = new Uint8Array(await request.arrayBuffer());
-  if (bytes.byteLength > MAX_BODY_BYTES)
-    return payloadTooLarge("A request may carry at most 1 MiB.");
+  const bytes = await readBodyLimited(request, MAX_BODY_BYTES);
+  if (bytes === null) return payloadTooLarge("A request may carry at most 1 MiB.");
   let body: unknown;
   try {
     body = JSON.parse(new TextDecoder("utf-8", { fatal: true }).decode(bytes));

@@ -2,10 +2,9 @@ import { index, integer, real, sqliteTable, text } from "drizzle-orm/sqlite-core
 import { users, gateways } from "./auth";
 import { createdAtMs, epochMs } from "./columns";
 
-export const areaKindValues = ["cure_room", "yard", "bin_area", "lab", "other"] as const;
-export const sensorKindValues = ["bag", "embedded", "bin", "ambient"] as const;
-/** "new": seen but not yet named and placed; "active": in service; "retired": out of service. */
-export const sensorStatusValues = ["new", "active", "retired"] as const;
+import { areaKindValues, sensorKindValues, sensorStatusValues } from "../../../vocabulary";
+
+export { areaKindValues, sensorKindValues, sensorStatusValues };
 
 /** Plant-wide settings as key/value pairs (plant name, time zone). */
 export const settings = sqliteTable("settings", {

@@ -1,6 +1,5 @@
 import type { APIRoute } from "astro";
-import { z } from "zod";
-import { sensorKindValues } from "@/lib/server/db/schema";
+import { sensorPatchBody } from "@/lib/schemas/plant";
 import { writeAudit } from "@/lib/server/db/queries/audit";
 import {
   findAreaByName,
@@ -13,17 +12,6 @@ import { parseBody } from "@/lib/server/http/parse";
 import { badRequest, json, notFound } from "@/lib/server/http/responses";
 import { presentSensor } from "@/lib/server/present/sensors";
 import { bus } from "@/lib/server/live/bus";
-
-const sensorPatchBody = z
-  .object({
-    label: z.string().trim().min(1).max(80).nullable(),
-    kind: z.enum(sensorKindValues).nullable(),
-    /** The area's name, or null to take the sensor out of any area. */
-    area: z.string().trim().min(1).max(80).nullable(),
-    status: z.enum(["active", "retired"]),
-  })
-  .partial()
-  .strict();
 
 export const GET: APIRoute = endpoint(async ({ locals, params }) => {
   requireAction(locals, "plant.read");

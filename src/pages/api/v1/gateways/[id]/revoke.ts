@@ -1,13 +1,14 @@
 import type { APIRoute } from "astro";
 import { writeAudit } from "@/lib/server/db/queries/audit";
+import { bus } from "@/lib/server/live/bus";
 import { getGateway, publicGateway, revokeGatewayOnce } from "@/lib/server/db/queries/credentials";
 import { auditActor, endpoint, requireAction } from "@/lib/server/http/guard";
 import { parseId } from "@/lib/server/http/parse";
 import { conflict, json, notFound } from "@/lib/server/http/responses";
 
 /**
- * A manager revokes a gateway: its key stops working at once over HTTP, and the broker
- * refuses its next connection. The gateway stays in the list, marked revoked.
+ * A manager revokes a gateway: its key stops working at once over HTTP, the broker drops
+ * its open connections and refuses the next. The gateway stays in the list, marked revoked.
  */
 export const POST: APIRoute = endpoint(async (ctx) => {
   requireAction(ctx.locals, "plant.admin");
@@ -22,5 +23,6 @@ export const POST: APIRoute = endpoint(async (ctx) => {
     entityId: revoked.id,
     detail: { name: revoked.name, key_prefix: revoked.keyPrefix },
   });
+  bus().emit("gateway", { gatewayId: revoked.id, change: "revoked" });
   return json(publicGateway(revoked));
 });
