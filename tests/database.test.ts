@@ -88,6 +88,11 @@ describe("the database", () => {
     expect(() => ins.run("NOPE", 1000, 20, null)).toThrow(/FOREIGN KEY/);
   });
 
+  it("keeps readings clustered on (sensor_id, ts)", () => {
+    const row = sqlite.prepare("select sql from sqlite_master where name = 'readings'").get() as { sql: string };
+    expect(row.sql).toMatch(/WITHOUT ROWID/i);
+  });
+
   it("answers a time window of one sensor from the primary key", () => {
     const plan = sqlite
       .prepare(

@@ -7,7 +7,8 @@ export const readingSourceValues = ["http", "mqtt", "upload", "demo"] as const;
 
 /**
  * One reading of one sensor. (sensor_id, ts) is the primary key: a reading sent twice
- * is stored once and the first value stands. The key also serves time-window queries.
+ * is stored once and the first value stands. The table is WITHOUT ROWID (migration 0003),
+ * clustered on that key, so a sensor's time window is one sequential range.
  * temp_c and rh_pct are as corrected by the sensor's offsets at ingest.
  */
 export const readings = sqliteTable(
