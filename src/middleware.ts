@@ -23,6 +23,17 @@ function crossSite(request: Request, url: URL): boolean {
   return site === "cross-site" || site === "same-site";
 }
 
+/** Content types a plain HTML form can send (and so a hostile page, without asking). */
+function isFormLike(request: Request): boolean {
+  const type = (request.headers.get("content-type") ?? "").toLowerCase();
+  return (
+    type === "" ||
+    type.startsWith("application/x-www-form-urlencoded") ||
+    type.startsWith("multipart/form-data") ||
+    type.startsWith("text/plain")
+  );
+}
+
 function withSecurityHeaders(res: Response): Response {
   try {
     res.headers.set("x-content-type-options", "nosniff");
@@ -70,12 +81,16 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
     }
   }
 
-  if (
-    UNSAFE.has(request.method) &&
-    (viaCookie || cookies.has(SESSION_COOKIE)) &&
-    crossSite(request, url)
-  ) {
-    return withSecurityHeaders(forbidden("Cross-site requests are refused."));
+  if (UNSAFE.has(request.method) && !access?.webhook) {
+    // A form post (what a hostile page can make a browser send) must come from Plinth's own
+    // origin; so must any change carried by a session cookie. A request with a bearer key
+    // cannot be forged by a page (browsers never add one by themselves).
+    const originOk = request.headers.get("origin") === url.origin;
+    const withSession = viaCookie || cookies.has(SESSION_COOKIE);
+    const formForgeable = !authz && isFormLike(request) && !originOk;
+    if (formForgeable || (withSession && crossSite(request, url))) {
+      return withSecurityHeaders(forbidden("Cross-site requests are refused."));
+    }
   }
 
   if (!access) return withSecurityHeaders(await next());

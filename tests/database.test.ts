@@ -89,7 +89,9 @@ describe("the database", () => {
   });
 
   it("keeps readings clustered on (sensor_id, ts)", () => {
-    const row = sqlite.prepare("select sql from sqlite_master where name = 'readings'").get() as { sql: string };
+    const row = sqlite.prepare("select sql from sqlite_master where name = 'readings'").get() as {
+      sql: string;
+    };
     expect(row.sql).toMatch(/WITHOUT ROWID/i);
   });
 

@@ -230,7 +230,11 @@ export default function FloorLive({ areas: initial, units, nowMs }: Props) {
                     <p
                       className={`text-xs ${attention.has(st) ? "font-semibold text-ink" : "text-muted"}`}
                     >
-                      {attention.has(st) ? tileAdvice(st) : ago ? `${ago} ago` : tileAdvice(st)}
+                      {attention.has(st)
+                        ? tileAdvice(st, units)
+                        : ago
+                          ? `${ago} ago`
+                          : tileAdvice(st, units)}
                     </p>
                   </a>
                 </li>

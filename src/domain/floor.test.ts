@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { tileState } from "./floor";
+import { tileAdvice, tileState } from "./floor";
 
 const now = 1_000_000_000;
 const bag = {
@@ -35,5 +35,14 @@ describe("a floor tile's state", () => {
   });
   it("waits for a first reading", () => {
     expect(tileState({ ...bag, lastSeenAtMs: null, tempC: null }, now)).toBe("waiting");
+  });
+});
+
+describe("a tile's advice", () => {
+  // domain.md §8.3: 10 °C = 50 °F; 70 °C = 158 °F.
+  it("speaks the operator's units", () => {
+    expect(tileAdvice("cold", "us")).toContain("50 °F");
+    expect(tileAdvice("cold", "si")).toContain("10 °C");
+    expect(tileAdvice("hot", "us")).toContain("158 °F");
   });
 });

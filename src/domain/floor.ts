@@ -4,6 +4,7 @@
  * these are the plain limits a crew checks by eye.
  */
 import { MOIST_CURE_MIN_RH_PCT, SILENT_AFTER_MS } from "./sensorState";
+import { displayTemp, type UnitSystem } from "./units";
 
 /** Keep curing concrete above 10 °C (50 °F) (ACI 318 26.5.3, from memory; also UFGS next to forms). */
 export const CURE_MIN_TEMP_C = 10;
@@ -42,15 +43,16 @@ export const tileLabels: Record<TileState, string> = {
   waiting: "No reading yet",
 };
 
-/** How the tile's state sounds in one short line, for the operator. */
-export function tileAdvice(state: TileState): string {
+/** How the tile's state sounds in one short line, for the operator, in their units. */
+export function tileAdvice(state: TileState, units: UnitSystem = "si"): string {
+  const t = (c: number) => `${displayTemp(c, units, 0).value} ${displayTemp(c, units, 0).unit}`;
   switch (state) {
     case "dry":
       return `Below ${MOIST_CURE_MIN_RH_PCT} % RH: re-wet the pads`;
     case "cold":
-      return `Below ${CURE_MIN_TEMP_C} °C: check the heat and the cover`;
+      return `Below ${t(CURE_MIN_TEMP_C)}: check the heat and the cover`;
     case "hot":
-      return `Above ${CURE_MAX_TEMP_C} °C: check the heat`;
+      return `Above ${t(CURE_MAX_TEMP_C)}: check the heat`;
     case "silent":
       return "No reading for 15 min: check the sensor and gateway";
     case "waiting":

@@ -58,6 +58,8 @@ export interface RouteAccess {
   methods: Partial<Record<Method, Requirement>>;
   /** For the role-matrix test: a concrete path to call (defaults to the route). */
   sample?: string;
+  /** A webhook from outside (no Origin, its own signature): exempt from the origin check. */
+  webhook?: boolean;
   /** The status a permitted caller gets, where it is not 200 (the "not for your role" page). */
   permittedStatus?: number;
 }
@@ -80,6 +82,25 @@ export const routeAccess: readonly RouteAccess[] = [
   },
   { route: "/gateways", kind: "page", methods: { GET: "plant.admin" } },
   { route: "/uploads", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/mixes", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/mixes/[id]", kind: "page", methods: { GET: "plant.read" }, sample: "/mixes/1" },
+  { route: "/pours", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/pours/[id]", kind: "page", methods: { GET: "plant.read" }, sample: "/pours/1" },
+  {
+    route: "/pours/[id]/strength",
+    kind: "page",
+    methods: { GET: "plant.read" },
+    sample: "/pours/1/strength",
+  },
+  {
+    route: "/pours/[id]/history",
+    kind: "page",
+    methods: { GET: "plant.read" },
+    sample: "/pours/1/history",
+  },
+  { route: "/ready", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/bins", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/dev/outbox", kind: "page", methods: { GET: "plant.admin" } },
   // Sign-in API
   { route: "/api/auth/login", kind: "api", methods: { POST: "public" } },
   { route: "/api/auth/logout", kind: "api", methods: { POST: "session" } },
@@ -143,6 +164,87 @@ export const routeAccess: readonly RouteAccess[] = [
     methods: { POST: "plant.admin" },
     sample: "/api/v1/tokens/999999/revoke",
   },
+  // Mixes and calibration
+  { route: "/api/v1/mixes", kind: "api", methods: { GET: "plant.read", POST: "quality.manage" } },
+  {
+    route: "/api/v1/mixes/[id]",
+    kind: "api",
+    methods: { GET: "plant.read", PATCH: "quality.manage" },
+    sample: "/api/v1/mixes/1",
+  },
+  {
+    route: "/api/v1/mixes/[id]/calibration",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "quality.manage" },
+    sample: "/api/v1/mixes/1/calibration",
+  },
+  {
+    route: "/api/v1/mixes/[id]/points",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "quality.manage" },
+    sample: "/api/v1/mixes/1/points",
+  },
+  {
+    route: "/api/v1/mixes/[id]/points/[pointId]",
+    kind: "api",
+    methods: { DELETE: "quality.manage" },
+    sample: "/api/v1/mixes/1/points/999999",
+  },
+  {
+    route: "/api/v1/mixes/[id]/points/upload",
+    kind: "api",
+    methods: { POST: "quality.manage" },
+    sample: "/api/v1/mixes/1/points/upload",
+  },
+  // Pours, their strength, breaks and releases
+  { route: "/api/v1/pours", kind: "api", methods: { GET: "plant.read", POST: "floor.operate" } },
+  {
+    route: "/api/v1/pours/[id]",
+    kind: "api",
+    methods: { GET: "plant.read", PATCH: "floor.operate" },
+    sample: "/api/v1/pours/1",
+  },
+  {
+    route: "/api/v1/pours/[id]/sensors",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "floor.operate" },
+    sample: "/api/v1/pours/1/sensors",
+  },
+  {
+    route: "/api/v1/pours/[id]/strength",
+    kind: "api",
+    methods: { GET: "plant.read" },
+    sample: "/api/v1/pours/1/strength",
+  },
+  {
+    route: "/api/v1/pours/[id]/breaks",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "quality.manage" },
+    sample: "/api/v1/pours/1/breaks",
+  },
+  {
+    route: "/api/v1/pours/[id]/releases",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "quality.manage" },
+    sample: "/api/v1/pours/1/releases",
+  },
+  {
+    route: "/api/v1/pours/[id]/history.csv",
+    kind: "api",
+    methods: { GET: "plant.read" },
+    sample: "/api/v1/pours/1/history.csv",
+  },
+  {
+    route: "/api/v1/pours/[id]/report.pdf",
+    kind: "api",
+    methods: { GET: "plant.read" },
+    sample: "/api/v1/pours/1/report.pdf",
+  },
+  { route: "/api/v1/ready", kind: "api", methods: { GET: "plant.read" } },
+  { route: "/api/v1/bins", kind: "api", methods: { GET: "plant.read" } },
+  // Notifications: what the local fakes received (demo and tests), and texts coming back
+  { route: "/api/v1/dev/outbox", kind: "api", methods: { GET: "plant.admin" } },
+  { route: "/api/v1/sms/inbound", kind: "api", methods: { POST: "public" }, webhook: true },
   // Logger uploads
   { route: "/api/v1/uploads", kind: "api", methods: { GET: "plant.read", POST: "floor.operate" } },
   { route: "/api/v1/uploads/preview", kind: "api", methods: { POST: "floor.operate" } },
@@ -175,6 +277,10 @@ export function requirementFor(access: RouteAccess, method: string): Requirement
 export const navigation: readonly { href: string; label: string; action: Action }[] = [
   { href: "/", label: "Plant", action: "plant.read" },
   { href: "/floor", label: "Live floor", action: "plant.read" },
+  { href: "/pours", label: "Pours", action: "plant.read" },
+  { href: "/ready", label: "Strip & ship", action: "plant.read" },
+  { href: "/mixes", label: "Mixes", action: "plant.read" },
+  { href: "/bins", label: "Bins", action: "plant.read" },
   { href: "/sensors", label: "Sensors", action: "plant.read" },
   { href: "/uploads", label: "Logger files", action: "plant.read" },
   { href: "/gateways", label: "Gateways", action: "plant.admin" },

@@ -21,6 +21,20 @@ const labels: Record<string, string> = {
   "sensor.calibration_recorded": "Calibration check recorded",
   "area.created": "Area added",
   "upload.imported": "Logger file imported",
+  "release.strip": "Strip release signed off",
+  "release.ship": "Ship release signed off",
+  "mix.created": "Mix added",
+  "mix.updated": "Mix changed",
+  "mix.point_added": "Cylinder break added to a mix",
+  "mix.point_removed": "Cylinder break removed from a mix",
+  "mix.points_imported": "Lab file of cylinder breaks imported",
+  "mix.calibrated": "Mix calibrated (new strength-maturity fit)",
+  "notice.text_reply": "Text reply received",
+  "pour.created": "Pour recorded",
+  "pour.updated": "Pour's record changed",
+  "pour.sensors_changed": "Pour's sensors changed",
+  "pour.status_changed": "Pour's status changed",
+  "break.recorded": "Cylinder break entered",
 };
 
 export function auditLabel(action: string): string {

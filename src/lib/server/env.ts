@@ -19,6 +19,20 @@ const envSchema = z.object({
   LOGIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
   LOGIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),
   LOG_LEVEL: z.enum(["debug", "info", "warn", "error"]).default("info"),
+  // Notices out (e-mail, texts) and texts back: src/lib/server/notify/.
+  SMTP_URL: z.url().optional(),
+  MAIL_FROM: z.string().min(3).default("Plinth <plinth@localhost>"),
+  SMS_ACCOUNT_SID: z
+    .string()
+    .regex(/^AC[0-9a-zA-Z]{8,}$/, "starts with AC")
+    .optional(),
+  SMS_AUTH_TOKEN: z.string().min(8).optional(),
+  SMS_FROM: z.string().min(3).optional(),
+  SMS_API_BASE: z.url().optional(),
+  PUBLIC_URL: z.url().optional(),
+  NOTIFY_FAKES: z.enum(["0", "1"]).optional(),
+  NOTIFY_FAKE_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+  NOTIFY_FAKE_SMS_PORT: z.coerce.number().int().min(0).max(65535).default(0),
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -20,6 +20,20 @@ import {
   userCreateBody,
   userPatchBody,
 } from "@/lib/schemas/users";
+import {
+  calibrationFitBody,
+  labUploadBody,
+  mixCreateBody,
+  mixPatchBody,
+  pointCreateBody,
+} from "@/lib/schemas/mixes";
+import {
+  breakCreateBody,
+  pourCreateBody,
+  pourPatchBody,
+  pourSensorsBody,
+} from "@/lib/schemas/pours";
+import { releaseCreateBody } from "@/lib/schemas/releases";
 import { loggerPreviewBody, loggerUploadBody } from "./uploads/parse";
 
 interface Doc {
@@ -136,6 +150,97 @@ const docs: Record<string, Doc> = {
     body: loggerPreviewBody,
   },
   "GET /api/v1/openapi.json": { summary: "This description." },
+  "GET /api/v1/mixes": { summary: "Mixes with their strengths and calibration state." },
+  "POST /api/v1/mixes": {
+    summary:
+      "Add a mix: name, design, strip and ship strengths (psi), datum temperature, activation energy.",
+    body: mixCreateBody,
+  },
+  "GET /api/v1/mixes/{id}": { summary: "One mix." },
+  "PATCH /api/v1/mixes/{id}": {
+    summary: "Change a mix; a new datum or activation energy rebuilds its pours' maturity.",
+    body: mixPatchBody,
+  },
+  "GET /api/v1/mixes/{id}/calibration": {
+    summary: "The mix's strength-maturity curve in force, and earlier fits.",
+  },
+  "POST /api/v1/mixes/{id}/calibration": {
+    summary:
+      "Fit a strength-maturity curve (log, hyperbolic or exponential) to points; it becomes the mix's curve.",
+    body: calibrationFitBody,
+  },
+  "GET /api/v1/mixes/{id}/points": {
+    summary: "The mix's calibration points (cylinder breaks at known maturity).",
+  },
+  "POST /api/v1/mixes/{id}/points": {
+    summary:
+      "Add a calibration point from a break, with its maturity, curing temperature or temperature record.",
+    body: pointCreateBody,
+  },
+  "DELETE /api/v1/mixes/{id}/points/{pointId}": { summary: "Remove a calibration point." },
+  "POST /api/v1/mixes/{id}/points/upload": {
+    summary: "Import calibration points from the lab's CSV (dry_run to preview).",
+    body: labUploadBody,
+  },
+  "GET /api/v1/pours": { summary: "Pours, newest first." },
+  "POST /api/v1/pours": {
+    summary: "Record a pour: code, mix, cast time and the sensors watching it.",
+    body: pourCreateBody,
+  },
+  "GET /api/v1/pours/{id}": {
+    summary: "One pour: mix, pieces, sensors, fresh-concrete tests, status.",
+  },
+  "PATCH /api/v1/pours/{id}": {
+    summary: "Change a pour's fresh-concrete tests, notes, pieces or status.",
+    body: pourPatchBody,
+  },
+  "GET /api/v1/pours/{id}/sensors": {
+    summary: "The pour's sensor assignments with their time windows.",
+  },
+  "POST /api/v1/pours/{id}/sensors": {
+    summary: "Add or end sensor assignments; the pour's maturity is rebuilt.",
+    body: pourSensorsBody,
+  },
+  "GET /api/v1/pours/{id}/strength": {
+    summary:
+      "In-place strength by the maturity method: each sensor, the governing one, strip and ship progress.",
+  },
+  "GET /api/v1/pours/{id}/breaks": {
+    summary: "Cylinder breaks of the pour, each against the estimate at its time.",
+  },
+  "POST /api/v1/pours/{id}/breaks": {
+    summary: "Record a cylinder break; below 90 % of the estimate warns to recalibrate.",
+    body: breakCreateBody,
+  },
+  "GET /api/v1/pours/{id}/releases": { summary: "The pour's strip and ship sign-offs." },
+  "POST /api/v1/pours/{id}/releases": {
+    summary:
+      "Sign off strip or ship; refused (409) below the threshold unless an override reason is given.",
+    body: releaseCreateBody,
+  },
+  "GET /api/v1/pours/{id}/history.csv": { summary: "The pour's whole cure record as CSV." },
+  "GET /api/v1/pours/{id}/report.pdf": { summary: "The pour's printable cure report." },
+  "GET /api/v1/ready": {
+    summary: "What is ready to strip and ship now, and what comes next, soonest first.",
+  },
+  "GET /api/v1/dev/outbox": {
+    summary: "Every e-mail and text the local fakes received, newest first (only while they run).",
+  },
+  "POST /api/v1/sms/inbound": {
+    summary: "Replies to alert texts (the SMS provider's webhook; its signature is checked).",
+  },
+  "GET /api/v1/bins": {
+    summary:
+      "Aggregate bins with their last temperatures, and for a mix the next batch's temperature by the ACI 305R/306R heat balance, with the water temperature or ice that brings it into the placing range.",
+    query: {
+      mix_id: "a mix's id",
+      water_temp_c: "added mixing water, °C (default 15)",
+      cement_temp_c: "cement and SCM, °C (default 15)",
+      fine_temp_c: "fine aggregate measured by hand, °C",
+      coarse_temp_c: "coarse aggregate measured by hand, °C",
+      bins: "comma-separated bin ids to average (default: every reporting bin)",
+    },
+  },
 };
 
 const problem = {

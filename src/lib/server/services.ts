@@ -35,6 +35,7 @@ export async function startServices(options: ServicesOptions = {}): Promise<void
   migrateDatabase(db);
   if (options.demo) await seedDemoPlant();
   reconcileMaturity();
+  await startNoticesPart(Boolean(options.demo));
   bus().on("readings", onReadings);
   const state: State = { started: true, demo: Boolean(options.demo) };
   if (e.MQTT_URL) state.subscriber = startSubscriber(e.MQTT_URL, e.MQTT_CLIENT_ID);
@@ -66,6 +67,7 @@ export async function stopServices(): Promise<void> {
   bus().off("readings", onReadings);
   await state.subscriber?.close();
   await state.broker?.close();
+  await stopNoticesPart();
   closeDatabase();
   log.info("services stopped");
 }
@@ -98,4 +100,21 @@ export function servicesHealth(): { started: boolean; mqtt: "ok" | "down" } {
   if (state.subscriber)
     return { started: true, mqtt: state.subscriber.connected() ? "ok" : "down" };
   return { started: true, mqtt: state.broker ? "ok" : "down" };
+}
+
+// ---------------------------------------------------------------------------------------
+// Notices (e-mail and texts): the outbox worker and, in demo mode or with NOTIFY_FAKES=1,
+// the local e-mail and SMS fakes the transports are pointed at. See src/lib/server/notify/.
+// ---------------------------------------------------------------------------------------
+
+/** Starts the notice worker (and the fakes where wanted); the database is migrated by now. */
+async function startNoticesPart(demo: boolean): Promise<void> {
+  const { startNotifications } = await import("./notify/service");
+  await startNotifications({ demo });
+}
+
+/** Lets the sends in flight finish, then stops the worker and the fakes, before the database closes. */
+async function stopNoticesPart(): Promise<void> {
+  const { stopNotifications } = await import("./notify/service");
+  await stopNotifications();
 }

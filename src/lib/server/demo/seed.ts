@@ -22,6 +22,7 @@ import {
   areas,
   calibrationPoints,
   gateways,
+  mixCalibrations,
   mixes,
   pourProducts,
   pourSensors,
@@ -31,7 +32,9 @@ import {
   users,
 } from "../db/schema";
 import { nextCalibrationDue } from "@/domain/calibration";
+import { fitStrengthCurve } from "@/domain/strength/curves";
 import { log } from "../log";
+import { seedDemoReleases } from "./releases";
 
 export const DEMO_PASSWORD = "demo-plinth-pass";
 export const DEMO_GATEWAY = { name: "demo-gateway", key: "demo-gateway-key-0001" };
@@ -159,6 +162,31 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
         .get();
       mixIds.set(m.name, row.id);
       // Invented breaks of lab-cured cylinders at 23 °C: maturity = age × (23 − datum).
+      if (m.breaks.length >= 4) {
+        const fit = fitStrengthCurve(
+          "log",
+          m.breaks.map(([days, psi]) => ({
+            ttfCH: days * 24 * (23 - m.datumC),
+            strengthMpa: psiToMpa(psi),
+          })),
+        );
+        const { model, ...params } = fit.curve;
+        const cal = tx
+          .insert(mixCalibrations)
+          .values({
+            mixId: row.id,
+            model,
+            paramsJson: JSON.stringify(params),
+            r2: fit.r2,
+            pointCount: m.breaks.length,
+            warningsJson: JSON.stringify(fit.warnings),
+            createdBy: qc.id,
+            createdAt: nowMs - 12 * 24 * HOUR_MS,
+          })
+          .returning({ id: mixCalibrations.id })
+          .get();
+        tx.update(mixes).set({ currentCalibrationId: cal.id }).where(eq(mixes.id, row.id)).run();
+      }
       for (const [days, psi] of m.breaks) {
         tx.insert(calibrationPoints)
           .values({
@@ -237,6 +265,8 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
     }
   }
   total += insertReadings(batch);
+  // QC's past strip sign-offs of the two oldest pours, on the readings just stored.
+  seedDemoReleases(nowMs);
 
   writeAudit({ label: "system" }, { action: "demo.seeded", detail: { readings: total } }, nowMs);
   log.info("demo plant seeded", { readings: total, ms: Date.now() - started });
