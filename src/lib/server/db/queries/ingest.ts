@@ -67,7 +67,12 @@ export function storeReadings(
   const run = getSqlite().transaction((batch: readonly CleanReading[]) => {
     const sensors = new Map<
       string,
-      { tempOffset: number; rhOffset: number; lastSeen: number | null; newest: CleanReading | null }
+      {
+        tempOffset: number;
+        rhOffset: number;
+        lastSeen: number | null;
+        newest: (CleanReading & { latest: boolean }) | null;
+      }
     >();
     const newSensors: string[] = [];
     const stored: (CleanReading & { latest: boolean })[] = [];
@@ -95,14 +100,15 @@ export function storeReadings(
         duplicates++;
         continue;
       }
-      stored.push({ ...r, latest: false });
-      if (!info.newest || r.tsMs > info.newest.tsMs) info.newest = r;
+      const kept = { ...r, latest: false };
+      stored.push(kept);
+      if (!info.newest || r.tsMs > info.newest.tsMs) info.newest = kept;
     }
     for (const [id, info] of sensors) {
       const n = info.newest;
       if (!n || (info.lastSeen !== null && n.tsMs <= info.lastSeen)) continue;
       s.touch.run(n.tsMs, n.tempC, n.rhPct, n.batteryPct, gatewayId, id, n.tsMs);
-      for (const r of stored) if (r.sensorId === id && r.tsMs === n.tsMs) r.latest = true;
+      n.latest = true;
     }
     if (gatewayId !== null) s.gatewayUsed.run(nowMs, gatewayId);
     return { accepted: stored.length, duplicates, newSensors, stored };
