@@ -496,7 +496,9 @@ const findRow = (sensor: string, tsMs: number) =>
 
 function expectStored(e: Expected) {
   const row = findRow(e.sensor, e.tsMs);
-  expect(row, `${e.sensor} at ${e.tsMs} is stored`).toBeDefined();
+  expect(row, `${e.sensor} at ${e.tsMs} is stored`).toEqual(
+    expect.objectContaining({ temp_c: expect.any(Number) }),
+  );
   expect(Math.abs(row!.temp_c - e.tempC)).toBeLessThan(1e-9);
   if (e.rh === null) expect(row!.rh_pct).toBeNull();
   else expect(Math.abs(row!.rh_pct! - e.rh)).toBeLessThan(1e-9);
@@ -568,7 +570,9 @@ async function sendAndCheck(body: FuzzBody) {
         goodSent.push(p.expected);
       } else if (p.kind === "reject") {
         const error = errors.get(i);
-        expect(error, `reading ${i} must be rejected: ${p.text.slice(0, 200)}`).toBeDefined();
+        expect(error, `reading ${i} must be rejected: ${p.text.slice(0, 200)}`).toEqual(
+          expect.any(String),
+        );
         expect(error).toMatch(p.field);
       }
     });

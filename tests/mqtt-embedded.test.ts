@@ -117,7 +117,9 @@ describe("the embedded MQTT broker", () => {
         );
         // The PUBACK has arrived: the reading must already be committed.
         const row = reading(sensor, tsMs);
-        expect(row, `${sensor} stored before its PUBACK`).toBeDefined();
+        expect(row, `${sensor} stored before its PUBACK`).toEqual(
+          expect.objectContaining({ temp_c: expect.any(Number) }),
+        );
         expect(Math.abs(row!.temp_c - ((tempF - 32) * 5) / 9)).toBeLessThan(1e-9);
         expect(row!.rh_pct).toBe(rh ?? null);
         expect(row!.source).toBe("mqtt");

@@ -61,8 +61,8 @@ describe("colour contrast (WCAG 2.1 AA, 4.5:1 for text)", () => {
   ] as const) {
     const t = tokens(selector);
     it.each(pairs)(`${theme}: %s on %s reaches 4.5:1`, (fg, bg) => {
-      expect(t[fg], fg).toBeDefined();
-      expect(t[bg], bg).toBeDefined();
+      expect(t[fg], fg).toMatch(/^#[0-9a-f]{6}$/i);
+      expect(t[bg], bg).toMatch(/^#[0-9a-f]{6}$/i);
       expect(contrast(t[fg]!, t[bg]!)).toBeGreaterThanOrEqual(4.5);
     });
   }
