@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
+import { chromiumAvailable, openBrowser, screenshotPath, waitForIslands } from "./helpers/browser";
 import { call, demoEmail, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
 
 // The strength page and the strip release in a real browser (QC at a desk), and the floor's
@@ -15,6 +15,7 @@ afterAll(async () => {
 
 async function signInPage(page: import("playwright-core").Page, who: string) {
   await page.goto(`${plinth.url}/login`);
+  await waitForIslands(page);
   await page.fill("#email", `${who}@example.com`);
   await page.fill("#password", "demo-plinth-pass");
   await page.click("button[type=submit]");
@@ -40,6 +41,7 @@ describe.skipIf(!available)("strip and ship in the browser", () => {
       const page = await context.newPage();
       await signInPage(page, "qc");
       await page.goto(`${plinth.url}/pours/${pour.pour_id}/strength`);
+      await waitForIslands(page);
       await expect.poll(() => page.getByRole("progressbar").count(), { timeout: 5_000 }).toBe(2);
       expect(await page.getByTestId("milestone-strip").textContent()).toMatch(/Reached/);
       expect(await page.locator("tr[data-governing=true]").count()).toBe(1);
@@ -93,7 +95,7 @@ describe.skipIf(!available)("strip and ship in the browser", () => {
       const page = await context.newPage();
       await signInPage(page, "qc");
       await page.goto(`${plinth.url}/pours/${pour.pour_id}/strength`);
-      await page.locator("astro-island:not([ssr])").first().waitFor(); // hydrated
+      await waitForIslands(page);
       await expect
         .poll(() => page.getByTestId("override-needed").count(), { timeout: 5_000 })
         .toBe(1);
@@ -118,6 +120,7 @@ describe.skipIf(!available)("strip and ship in the browser", () => {
       const page = await context.newPage();
       await signInPage(page, "operator");
       await page.goto(`${plinth.url}/ready`);
+      await waitForIslands(page);
       await expect
         .poll(() => page.getByTestId("ready-row").count(), { timeout: 5_000 })
         .toBeGreaterThan(3);

@@ -63,3 +63,8 @@ export function screenshotPath(name: string): string {
   fs.mkdirSync(dir, { recursive: true });
   return path.join(dir, `${name}.png`);
 }
+
+/** Waits until every React island on the page has hydrated (Astro drops `ssr` then). */
+export async function waitForIslands(page: import("playwright-core").Page): Promise<void> {
+  await page.waitForFunction(() => document.querySelectorAll("astro-island[ssr]").length === 0);
+}
