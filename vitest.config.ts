@@ -25,6 +25,9 @@ export default defineConfig({
           environment: "node",
           globalSetup: ["tests/setup/build.ts"],
           testTimeout: 60_000,
+          // A test against a real server and browser on a busy 2-core machine gets one more
+          // try; one that fails twice is a failure.
+          retry: 1,
           hookTimeout: 120_000,
           // Each file starts its own server; two at a time suit a 2-core machine.
           maxWorkers: 2,
