@@ -101,6 +101,10 @@ export const routeAccess: readonly RouteAccess[] = [
   { route: "/ready", kind: "page", methods: { GET: "plant.read" } },
   { route: "/bins", kind: "page", methods: { GET: "plant.read" } },
   { route: "/dev/outbox", kind: "page", methods: { GET: "plant.admin" } },
+  { route: "/alerts", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/alerts/rules", kind: "page", methods: { GET: "plant.read" } },
+  { route: "/alerts/[id]", kind: "page", methods: { GET: "plant.read" }, sample: "/alerts/1" },
+  { route: "/on-call", kind: "page", methods: { GET: "plant.read" } },
   // Sign-in API
   { route: "/api/auth/login", kind: "api", methods: { POST: "public" } },
   { route: "/api/auth/logout", kind: "api", methods: { POST: "session" } },
@@ -248,6 +252,38 @@ export const routeAccess: readonly RouteAccess[] = [
   // Logger uploads
   { route: "/api/v1/uploads", kind: "api", methods: { GET: "plant.read", POST: "floor.operate" } },
   { route: "/api/v1/uploads/preview", kind: "api", methods: { POST: "floor.operate" } },
+  // Alerts: episodes, rules, the on-call rota
+  { route: "/api/v1/alerts", kind: "api", methods: { GET: "plant.read" } },
+  {
+    route: "/api/v1/alerts/[id]",
+    kind: "api",
+    methods: { GET: "plant.read" },
+    sample: "/api/v1/alerts/1",
+  },
+  {
+    route: "/api/v1/alerts/[id]/ack",
+    kind: "api",
+    methods: { POST: "floor.operate" },
+    sample: "/api/v1/alerts/999999/ack",
+  },
+  {
+    route: "/api/v1/alert-rules",
+    kind: "api",
+    methods: { GET: "plant.read", POST: "quality.manage" },
+  },
+  {
+    route: "/api/v1/alert-rules/[id]",
+    kind: "api",
+    methods: { GET: "plant.read", PATCH: "quality.manage", DELETE: "quality.manage" },
+    sample: "/api/v1/alert-rules/999999",
+  },
+  { route: "/api/v1/on-call", kind: "api", methods: { GET: "plant.read", POST: "users.manage" } },
+  {
+    route: "/api/v1/on-call/[id]",
+    kind: "api",
+    methods: { PATCH: "users.manage", DELETE: "users.manage" },
+    sample: "/api/v1/on-call/999999",
+  },
 ];
 
 const compiled = routeAccess.map((r) => ({
@@ -277,6 +313,7 @@ export function requirementFor(access: RouteAccess, method: string): Requirement
 export const navigation: readonly { href: string; label: string; action: Action }[] = [
   { href: "/", label: "Plant", action: "plant.read" },
   { href: "/floor", label: "Live floor", action: "plant.read" },
+  { href: "/alerts", label: "Alerts", action: "plant.read" },
   { href: "/pours", label: "Pours", action: "plant.read" },
   { href: "/ready", label: "Strip & ship", action: "plant.read" },
   { href: "/mixes", label: "Mixes", action: "plant.read" },
@@ -285,5 +322,6 @@ export const navigation: readonly { href: string; label: string; action: Action 
   { href: "/uploads", label: "Logger files", action: "plant.read" },
   { href: "/gateways", label: "Gateways", action: "plant.admin" },
   { href: "/team", label: "Team", action: "users.manage" },
+  { href: "/on-call", label: "On call", action: "plant.read" },
   { href: "/audit", label: "Audit log", action: "audit.read" },
 ];

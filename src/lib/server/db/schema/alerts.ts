@@ -1,4 +1,12 @@
-import { index, integer, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import {
+  index,
+  integer,
+  primaryKey,
+  real,
+  sqliteTable,
+  text,
+  uniqueIndex,
+} from "drizzle-orm/sqlite-core";
 import { users } from "./auth";
 import { bool, createdAtMs, epochMs } from "./columns";
 import { areas, sensorKindValues, sensors } from "./plant";
@@ -18,6 +26,12 @@ export const ruleKindValues = [
 ] as const;
 export const severityValues = ["info", "warning", "critical"] as const;
 export const episodeStateValues = ["open", "acknowledged", "cleared"] as const;
+/**
+ * Who hears of a rule's episodes: `on_call` texts the operator on call (escalating) and
+ * e-mails QC and managers; `quality` e-mails QC and managers only; `digest` collects them
+ * into the periodic digest e-mail.
+ */
+export const audienceValues = ["on_call", "quality", "digest"] as const;
 
 /**
  * A condition worth telling someone about. Thresholds in SI (°C, %, °C/h, minutes for
@@ -32,6 +46,7 @@ export const alertRules = sqliteTable("alert_rules", {
   holdMs: integer("hold_ms").notNull().default(0),
   clearMargin: real("clear_margin").notNull().default(0),
   severity: text("severity", { enum: severityValues }).notNull().default("warning"),
+  audience: text("audience", { enum: audienceValues }).notNull().default("on_call"),
   scopeAreaId: integer("scope_area_id").references(() => areas.id, { onDelete: "cascade" }),
   scopeSensorKind: text("scope_sensor_kind", { enum: sensorKindValues }),
   scopeSensorId: text("scope_sensor_id").references(() => sensors.id, { onDelete: "cascade" }),
@@ -65,7 +80,14 @@ export const alertEpisodes = sqliteTable(
     acknowledgedAt: epochMs("acknowledged_at"),
     acknowledgedBy: integer("acknowledged_by").references(() => users.id),
     ackNote: text("ack_note"),
+    /** How it was acknowledged: in Plinth ("web") or by replying to the text ("sms"). */
+    ackVia: text("ack_via", { enum: ["web", "sms"] }),
+    /** The latest value seen while it lasted, and when (reading time). */
+    lastValue: real("last_value"),
+    lastValueAt: epochMs("last_value_at"),
     clearedAt: epochMs("cleared_at"),
+    /** When an information-level episode went out in a digest. */
+    digestedAt: epochMs("digested_at"),
     escalationLevel: integer("escalation_level").notNull().default(0),
     lastNotifiedAt: epochMs("last_notified_at"),
     createdAt: createdAtMs(),
@@ -77,9 +99,30 @@ export const alertEpisodes = sqliteTable(
   ],
 );
 
+/**
+ * Where each rule stands for each sensor or pour (the episode state machine's track),
+ * written whenever its phase changes, in the same transaction as the episode it touches,
+ * so a restart resumes from it and replays only the readings after it.
+ */
+export const alertTracks = sqliteTable(
+  "alert_tracks",
+  {
+    ruleId: integer("rule_id")
+      .notNull()
+      .references(() => alertRules.id, { onDelete: "cascade" }),
+    /** The sensor's id, or "pour:<id>" for a pour milestone. */
+    subject: text("subject").notNull(),
+    trackJson: text("track_json").notNull(),
+    updatedAt: epochMs("updated_at").notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.ruleId, t.subject] })],
+);
+
 /** Who is on call when: a weekly window per person (minutes from local midnight). */
 export const onCallShifts = sqliteTable("on_call_shifts", {
   id: integer("id").primaryKey({ autoIncrement: true }),
+  /** The shift's name as the plant calls it ("Nights"). */
+  name: text("name").notNull().default(""),
   userId: integer("user_id")
     .notNull()
     .references(() => users.id, { onDelete: "cascade" }),
