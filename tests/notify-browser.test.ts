@@ -31,6 +31,25 @@ function queue(dbPath: string, key: string, channel: "sms" | "email", to: string
 
 describe.skipIf(!available)("the dev outbox page", () => {
   it("shows a manager each text and e-mail the fakes caught, newest first, as they arrive", async () => {
+    // The demo's own alerts (a bag seeded dry, pours at strip or ship strength) are sent at
+    // start: wait for them, then count on from there.
+    const settled = () => {
+      const db = new Database(plinth.dbPath, { readonly: true });
+      db.pragma("busy_timeout = 5000");
+      try {
+        const rows = db.prepare("select status, channel from notification_outbox").all() as {
+          status: string;
+          channel: string;
+        }[];
+        return rows.every((r) => r.status !== "pending") ? rows : null;
+      } finally {
+        db.close();
+      }
+    };
+    await expect.poll(() => settled() !== null, { timeout: 30_000 }).toBe(true);
+    const before = settled()!.filter((r) => r.status === "sent");
+    const n0 = before.length;
+    const e0 = before.filter((r) => r.channel === "email").length;
     queue(
       plinth.dbPath,
       "b:1",
@@ -58,7 +77,7 @@ describe.skipIf(!available)("the dev outbox page", () => {
         .poll(() => page.getByTestId("fakes-banner").textContent())
         .toContain("nothing left this machine");
       const list = page.getByTestId("dev-outbox-list").locator("li");
-      await expect.poll(() => list.count(), { timeout: 15_000 }).toBe(2);
+      await expect.poll(() => list.count(), { timeout: 15_000 }).toBe(n0 + 2);
 
       // A notice queued while the page is open shows without a reload, on top.
       queue(
@@ -68,16 +87,18 @@ describe.skipIf(!available)("the dev outbox page", () => {
         "+15550100001",
         "Plinth: Room B heater is off. Reply ACK.",
       );
-      await expect.poll(() => list.count(), { timeout: 15_000 }).toBe(3);
+      await expect.poll(() => list.count(), { timeout: 15_000 }).toBe(n0 + 3);
       expect(await list.first().textContent()).toContain("Room B heater is off");
       expect(await list.first().getAttribute("data-channel")).toBe("sms");
 
       await page.getByRole("button", { name: "E-mail" }).click();
-      await expect.poll(() => list.count()).toBe(1);
+      await expect.poll(() => list.count()).toBe(e0 + 1);
       await page.getByRole("button", { name: "Everything" }).click();
-      await expect.poll(() => list.count()).toBe(3);
+      await expect.poll(() => list.count()).toBe(n0 + 3);
       await page.reload();
-      await expect.poll(() => page.getByTestId("queue-table").locator("tbody tr").count()).toBe(3);
+      await expect
+        .poll(() => page.getByTestId("queue-table").locator("tbody tr").count())
+        .toBe(n0 + 3);
       await page.screenshot({ path: screenshotPath("manager-dev-outbox-desktop"), fullPage: true });
     } finally {
       await close();

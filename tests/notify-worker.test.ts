@@ -169,7 +169,7 @@ describe("the notice worker", () => {
     const texts = sms.received.filter((m) => m.body.startsWith("Plinth: CB-14 dry"));
     expect(texts).toHaveLength(1);
     expect(texts[0]).toMatchObject({ to: "+15550100003", from: "+15550109999" });
-    expect(texts[0]!.idempotencyKey).toBe("plinth-notice-t3:sms");
+    expect(texts[0]!.idempotencyKey).toBe(`plinth-notice-t3:sms-${row.createdAt}`);
     expect(row.providerId).toBe(texts[0]!.sid);
     expect(row.attempts).toBe(3);
     expect(sms.replays).toBe(0);

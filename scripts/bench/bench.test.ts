@@ -1,7 +1,7 @@
 // The bench's own small pieces: statistics, the event-stream reader, the options. (The
 // benchmarks themselves run only under `npm run bench`; no test here times anything.)
 import { describe, expect, it } from "vitest";
-import { readOptions } from "./options";
+import { benchmarkNames, readOptions } from "./options";
 import { drainEvents, type SseEvent } from "./sse";
 import { median, percentile, randomSource, worst } from "./stats";
 
@@ -58,7 +58,8 @@ describe("bench options", () => {
   it("runs every benchmark at full size by default", () => {
     const o = readOptions([]);
     expect(o.quick).toBe(false);
-    expect(o.only).toEqual(["ingest", "mqtt", "chart", "live"]);
+    expect(o.only).toEqual([...benchmarkNames]);
+    expect(o.only.slice(0, 6)).toEqual(["ingest", "mqtt", "chart", "live", "strength", "history"]);
   });
 
   it("takes --quick and --only, repeated or comma-separated", () => {
@@ -66,5 +67,15 @@ describe("bench options", () => {
     expect(o.quick).toBe(true);
     expect(o.only).toEqual(["chart", "live", "mqtt"]);
     expect(o.sizes.mqttMessages).toBeLessThan(readOptions([]).sizes.mqttMessages);
+  });
+
+  it("runs the strength and history benchmarks smaller in a quick run", () => {
+    const quick = readOptions(["--quick", "--only", "strength,history"]);
+    const full = readOptions(["--only", "strength", "--only", "history"]);
+    expect(quick.only).toEqual(["strength", "history"]);
+    expect(full.sizes.strengthPours).toBe(500);
+    expect(full.sizes.historySensors * full.sizes.historyDays).toBe(70);
+    expect(quick.sizes.strengthPours).toBeLessThan(full.sizes.strengthPours);
+    expect(quick.sizes.historyRuns).toBeLessThan(full.sizes.historyRuns);
   });
 });

@@ -4,7 +4,7 @@
  *
  * Rows are inserted through Plinth's schema in time order, every sensor's reading for one
  * minute before the next minute's, as gateways deliver them, so the file's pages are laid out
- * as in a plant's database. The file is built under a ".partial" name and renamed when
+ * as in a plant's database; then rolled up, as Plinth's background roll-up keeps it. The file is built under a ".partial" name and renamed when
  * finished; a sidecar JSON records what it holds, so a half-built file is never reused.
  * Migrations added later are applied to it before it is used (migrateChartDb).
  */
@@ -12,6 +12,7 @@ import Database from "better-sqlite3";
 import fs from "node:fs";
 import path from "node:path";
 import { migrationsFolder } from "@/lib/server/db/client";
+import { rollUpSensor } from "@/lib/server/db/queries/rollup";
 import { INSERT_READING_SQL, insertSensors, openMigrated } from "./db";
 import { benchManager, createManager, migrate, root } from "./plinth";
 import { progressReporter, say } from "./progress";
@@ -119,6 +120,20 @@ async function insertRows(sqlite: Database.Database, spec: ChartDb): Promise<voi
   }
 }
 
+/**
+ * Rolls every sensor's readings up (the readings rollup, as Plinth's background roll-up
+ * keeps a plant's database; migration 0005 does the same for a file built before it).
+ */
+async function rollUp(sqlite: Database.Database, spec: ChartDb): Promise<void> {
+  const report = progressReporter("rolled up", spec.sensors.length, "sensors", 5_000);
+  const nowMs = Date.now();
+  for (const [i, id] of spec.sensors.entries()) {
+    rollUpSensor(id, nowMs, sqlite);
+    report(i + 1);
+    await new Promise((resolve) => setImmediate(resolve));
+  }
+}
+
 /** How many of Plinth's migrations the file has not had yet (all of them for a file without any). */
 function pendingMigrations(file: string): number {
   const journal = JSON.parse(
@@ -175,6 +190,7 @@ export async function buildChartDb(spec: ChartDb): Promise<void> {
     sqlite.pragma("cache_size = -262144");
     insertSensors(sqlite, spec.sensors, spec.fromMs);
     await insertRows(sqlite, spec);
+    await rollUp(sqlite, spec);
     // No ANALYZE: Plinth never runs one, so the planner sees what it sees in a plant.
     say("  checkpointing");
     sqlite.pragma("wal_checkpoint(TRUNCATE)");

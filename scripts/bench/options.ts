@@ -1,7 +1,15 @@
 /** Command-line options of the benchmarks and the sizes each mode runs at. */
 import { parseArgs } from "node:util";
 
-export const benchmarkNames = ["ingest", "mqtt", "chart", "live"] as const;
+export const benchmarkNames = [
+  "ingest",
+  "mqtt",
+  "chart",
+  "live",
+  "strength",
+  "history",
+  "alerts",
+] as const;
 export type BenchmarkName = (typeof benchmarkNames)[number];
 
 export interface Sizes {
@@ -22,6 +30,20 @@ export interface Sizes {
   /** Benchmark 4: readings posted one at a time (after the warm-up ones). */
   liveReadings: number;
   liveWarmupReadings: number;
+  /** Benchmark 5: open pours, sensors on each, their ages (hours), timed rounds. */
+  strengthPours: number;
+  strengthSensorsPerPour: number;
+  strengthMinAgeH: number;
+  strengthMaxAgeH: number;
+  strengthRounds: number;
+  /** Benchmark 6: the pour's sensors and days of one-minute readings; timed and warm-up runs. */
+  historySensors: number;
+  historyDays: number;
+  historyRuns: number;
+  historyWarmupRuns: number;
+  /** Benchmark 7: dry-bag episodes, each a reading to the text at the SMS fake (after the warm-up ones). */
+  alertEpisodes: number;
+  alertWarmupEpisodes: number;
 }
 
 export interface Options {
@@ -43,6 +65,17 @@ const fullSizes: Sizes = {
   chartWarmupQueries: 3,
   liveReadings: 1_000,
   liveWarmupReadings: 20,
+  strengthPours: 500,
+  strengthSensorsPerPour: 3,
+  strengthMinAgeH: 24,
+  strengthMaxAgeH: 96,
+  strengthRounds: 5,
+  historySensors: 10,
+  historyDays: 7,
+  historyRuns: 30,
+  historyWarmupRuns: 3,
+  alertEpisodes: 100,
+  alertWarmupEpisodes: 2,
 };
 
 const quickSizes: Sizes = {
@@ -53,6 +86,10 @@ const quickSizes: Sizes = {
   mqttMessages: 8_000,
   chartQueries: 20,
   liveReadings: 300,
+  strengthPours: 100,
+  strengthRounds: 3,
+  historyRuns: 10,
+  alertEpisodes: 20,
 };
 
 export const usage = `Usage: tsx scripts/bench.ts [--quick] [--only <${benchmarkNames.join("|")}>[,...]]

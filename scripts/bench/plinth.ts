@@ -1,6 +1,6 @@
 /**
- * Starting the built Plinth for a benchmark: its own process (scripts/start.mjs, not demo
- * mode), free loopback ports, a database the benchmark chose. Also the accounts a benchmark
+ * Starting the built Plinth for a benchmark: its own process (scripts/start.mjs, demo mode
+ * only when asked), free loopback ports, a database the benchmark chose. Also the accounts a benchmark
  * needs, made the way an installer would: the first manager with scripts/user-create.ts,
  * then a gateway through the API.
  */
@@ -108,13 +108,27 @@ async function waitHealthy(
   }
 }
 
-/** Starts the built server (no demo data) on `dbPath` and waits until /api/health answers 200. */
-export async function startPlinth(dbPath: string): Promise<BenchPlinth> {
+export interface StartOptions {
+  /** Demo mode (`--demo`): the demo plant is seeded into an empty database, the notice fakes run. */
+  demo?: boolean;
+  /** More environment for Plinth (e.g. PLINTH_SIMULATOR=0). */
+  env?: Record<string, string>;
+}
+
+/**
+ * Starts the built server on `dbPath` (no demo data unless `options.demo`) and waits until
+ * /api/health answers 200.
+ */
+export async function startPlinth(
+  dbPath: string,
+  options: StartOptions = {},
+): Promise<BenchPlinth> {
   const port = await freePort();
   const mqttPort = await freePort();
   let out = "";
+  const args = [path.join(root, "scripts", "start.mjs"), ...(options.demo ? ["--demo"] : [])];
   const child = track(
-    spawn(process.execPath, [path.join(root, "scripts", "start.mjs")], {
+    spawn(process.execPath, args, {
       cwd: root,
       env: {
         ...process.env,
@@ -125,6 +139,7 @@ export async function startPlinth(dbPath: string): Promise<BenchPlinth> {
         MQTT_PORT: String(mqttPort),
         DATABASE_PATH: dbPath,
         LOG_LEVEL: "warn",
+        ...options.env,
       },
       stdio: ["ignore", "pipe", "pipe"],
     }),

@@ -32,6 +32,7 @@ export function notes(results: readonly BenchResult[]): string {
   for (const r of results) {
     if (typeof r.details.error === "string")
       out.push(`${r.name}: failed to run: ${r.details.error.split("\n")[0]}`);
+    if (typeof r.details.note === "string") out.push(`${r.name}: ${r.details.note}`);
     if (typeof r.details.warning === "string") out.push(`${r.name}: ${r.details.warning}`);
   }
   const busy = results.filter(

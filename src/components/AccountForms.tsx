@@ -3,7 +3,7 @@ import { useState } from "react";
 import { useForm } from "react-hook-form";
 import { z } from "zod";
 import { readProblem } from "@/lib/format";
-import { emailField, nameField, newPasswordField } from "@/lib/schemas/users";
+import { emailField, nameField, newPasswordField, phoneField } from "@/lib/schemas/users";
 import Field from "./Field";
 
 interface Props {
@@ -13,7 +13,7 @@ interface Props {
     phone: string | null;
     units: "us" | "si";
     theme: "system" | "light" | "dark";
-    notify: { sms: boolean; email: boolean };
+    notify: { sms: boolean; email: boolean; digest: boolean };
   };
   mustChangePassword: boolean;
 }
@@ -21,13 +21,15 @@ interface Props {
 const profileForm = z.object({
   name: nameField,
   email: emailField,
-  phone: z.string().trim().max(32),
+  phone: z.string().max(32, { message: "Use at most 32 characters" }).pipe(phoneField),
   units: z.enum(["us", "si"]),
   theme: z.enum(["system", "light", "dark"]),
   notify_sms: z.boolean(),
   notify_email: z.boolean(),
+  notify_digest: z.boolean(),
 });
 type ProfileForm = z.input<typeof profileForm>;
+type ProfileValues = z.output<typeof profileForm>;
 
 const passwordForm = z
   .object({
@@ -58,7 +60,7 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
   const [passwordMsg, setPasswordMsg] = useState<{ tone: "ok" | "error"; text: string } | null>(
     null,
   );
-  const profile = useForm<ProfileForm>({
+  const profile = useForm<ProfileForm, unknown, ProfileValues>({
     resolver: zodResolver(profileForm),
     defaultValues: {
       name: me.name,
@@ -68,6 +70,7 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
       theme: me.theme,
       notify_sms: me.notify.sms,
       notify_email: me.notify.email,
+      notify_digest: me.notify.digest,
     },
   });
   const password = useForm<PasswordForm>({
@@ -77,11 +80,14 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
   const pe = profile.formState.errors;
   const we = password.formState.errors;
 
-  async function saveProfile(values: ProfileForm) {
+  async function saveProfile(values: ProfileValues) {
+    // The digest follows the person's role until they choose it themselves.
+    const { notify_digest, ...rest } = values;
+    const digestChosen = profile.formState.dirtyFields.notify_digest === true;
     const res = await fetch("/api/v1/me", {
       method: "PATCH",
       headers: { "content-type": "application/json" },
-      body: JSON.stringify({ ...values, phone: values.phone || null }),
+      body: JSON.stringify({ ...rest, ...(digestChosen && { notify_digest }) }),
     });
     if (!res.ok) {
       const p = await readProblem(res);
@@ -91,6 +97,7 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
       return;
     }
     const themeChanged = values.theme !== me.theme || values.units !== me.units;
+    profile.reset({ ...values, phone: values.phone ?? "" });
     setProfileMsg({ tone: "ok", text: "Saved." });
     if (themeChanged) window.location.reload();
   }
@@ -120,6 +127,15 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
   }
 
   const invalid = (e: unknown) => (e ? true : undefined);
+  const [phoneNow, smsOn, emailOn] = profile.watch(["phone", "notify_sms", "notify_email"]);
+  const channelWarning =
+    !smsOn && !emailOn
+      ? "With texts and e-mails both off, alerts will not reach you, even when you are on call."
+      : smsOn && !phoneNow.trim()
+        ? emailOn
+          ? "Texts need a phone number: until you add one, alerts reach you by e-mail."
+          : "Texts need a phone number, and e-mails are off: alerts will not reach you."
+        : null;
   return (
     <div className="grid gap-6 lg:grid-cols-2">
       <section
@@ -219,7 +235,7 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
           <Field
             id="phone"
             label="Mobile phone for alert texts"
-            hint="International form, e.g. +1 555 010 0123. Leave empty for no texts."
+            hint="International form: + and country code, 8 to 15 digits, e.g. +1 555 010 0123. Leave empty for no texts."
             error={pe.phone?.message}
           >
             <input
@@ -242,6 +258,28 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
               <input type="checkbox" className="h-5 w-5" {...profile.register("notify_email")} />{" "}
               E-mail
             </label>
+            <label className="flex min-h-11 items-start gap-3 py-2">
+              <input
+                type="checkbox"
+                className="mt-0.5 h-5 w-5 shrink-0"
+                aria-describedby="notify_digest-hint"
+                {...profile.register("notify_digest")}
+              />
+              <span>
+                Daily digest e-mail
+                <span id="notify_digest-hint" className="hint block">
+                  One e-mail a day gathering the minor (information-level) alerts.
+                </span>
+              </span>
+            </label>
+            {channelWarning && (
+              <p
+                className="rounded-md bg-warn-bg px-3 py-2 text-sm font-semibold text-warn"
+                role="status"
+              >
+                {channelWarning}
+              </p>
+            )}
           </fieldset>
           <Field id="units" label="Units">
             <select id="units" className="input" {...profile.register("units")}>

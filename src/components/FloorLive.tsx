@@ -1,4 +1,5 @@
 import { useEffect, useMemo, useState } from "react";
+import { compareForAttention } from "@/domain/alerts/episodeWords";
 import { tileAdvice, tileLabels, tileState, type TileState } from "@/domain/floor";
 import { formatDuration } from "@/domain/sensorState";
 import { displayTemp, type UnitSystem } from "@/domain/units";
@@ -20,11 +21,48 @@ export interface FloorArea {
   tiles: FloorTile[];
 }
 
+/** An alert episode not yet cleared, as the floor shows it on its sensor's tile. */
+export interface FloorAlert {
+  id: number;
+  sensor: string | null;
+  rule: string;
+  state: "open" | "acknowledged" | "cleared";
+  severity: "info" | "warning" | "critical";
+  opened_at: string;
+}
+
 interface Props {
   areas: FloorArea[];
+  alerts: FloorAlert[];
   units: UnitSystem;
   nowMs: number;
 }
+
+/** The alerts not yet cleared, from the API (the floor refetches them on every alert event). */
+async function fetchActiveAlerts(): Promise<FloorAlert[] | null> {
+  try {
+    const res = await fetch("/api/v1/alerts?state=active&limit=1000", {
+      headers: { accept: "application/json" },
+    });
+    if (!res.ok) return null;
+    return ((await res.json()) as FloorAlert[]).map((e) => ({
+      id: e.id,
+      sensor: e.sensor,
+      rule: e.rule,
+      state: e.state,
+      severity: e.severity,
+      opened_at: e.opened_at,
+    }));
+  } catch {
+    return null;
+  }
+}
+
+const byAttention = (a: FloorAlert, b: FloorAlert) =>
+  compareForAttention(
+    { ...a, openedAtMs: Date.parse(a.opened_at) },
+    { ...b, openedAtMs: Date.parse(b.opened_at) },
+  );
 
 const SPARK_WINDOW_MS = 3 * 3_600_000;
 
@@ -51,8 +89,9 @@ interface LiveReading {
  * The live cure floor: one tile per sensor, grouped by area, updated by server-sent events
  * as readings are committed. EventSource reconnects by itself; the header says when it is.
  */
-export default function FloorLive({ areas: initial, units, nowMs }: Props) {
+export default function FloorLive({ areas: initial, alerts: initialAlerts, units, nowMs }: Props) {
   const [areas, setAreas] = useState(initial);
+  const [alerts, setAlerts] = useState(initialAlerts);
   const [now, setNow] = useState(nowMs);
   const [link, setLink] = useState<"connecting" | "live" | "retrying">("connecting");
   const [filter, setFilter] = useState<string>("all");
@@ -60,8 +99,26 @@ export default function FloorLive({ areas: initial, units, nowMs }: Props) {
 
   useEffect(() => {
     const es = new EventSource("/api/v1/live");
-    es.addEventListener("open", () => setLink("live"));
-    es.addEventListener("error", () => setLink("retrying"));
+    // Alerts change on the server (opened, worsened, acknowledged, cleared): fetch the list
+    // again, newest answer wins. After a reconnect too, as events may have been missed.
+    let asked = 0;
+    let missed = false;
+    const refreshAlerts = () => {
+      const mine = ++asked;
+      void fetchActiveAlerts().then((list) => {
+        if (list && mine === asked) setAlerts(list);
+      });
+    };
+    es.addEventListener("open", () => {
+      setLink("live");
+      if (missed) refreshAlerts();
+      missed = false;
+    });
+    es.addEventListener("error", () => {
+      setLink("retrying");
+      missed = true;
+    });
+    es.addEventListener("alert", refreshAlerts);
     es.addEventListener("readings", (ev) => {
       const batch = JSON.parse((ev as MessageEvent<string>).data) as LiveReading[];
       const bySensor = new Map<string, LiveReading[]>();
@@ -114,18 +171,56 @@ export default function FloorLive({ areas: initial, units, nowMs }: Props) {
     }
     return m;
   }, [areas, now]);
-  const problems = [...states.values()].filter((s) => attention.has(s)).length;
+
+  const alertsBySensor = useMemo(() => {
+    const m = new Map<string, FloorAlert[]>();
+    for (const e of [...alerts].filter((x) => x.state !== "cleared").sort(byAttention))
+      if (e.sensor) m.set(e.sensor, [...(m.get(e.sensor) ?? []), e]);
+    return m;
+  }, [alerts]);
+  // Notes (strip or ship strength reached) are open too, but they do not call anyone out.
+  const openAlerts = alerts.filter((e) => e.state === "open" && e.severity !== "info").length;
+  const openNotes = alerts.filter((e) => e.state === "open" && e.severity === "info").length;
+  const inHandAlerts = alerts.filter((e) => e.state === "acknowledged").length;
+  const needsLook = (id: string) => attention.has(states.get(id)!) || alertsBySensor.has(id);
+  const problems = [...states.keys()].filter(needsLook).length;
 
   const shown = areas
     .filter((a) => filter === "all" || a.name === filter)
     .map((a) => ({
       ...a,
-      tiles: onlyProblems ? a.tiles.filter((t) => attention.has(states.get(t.id)!)) : a.tiles,
+      tiles: onlyProblems ? a.tiles.filter((t) => needsLook(t.id)) : a.tiles,
     }))
     .filter((a) => a.tiles.length > 0);
 
   return (
     <div>
+      <a
+        href="/alerts"
+        data-testid="alert-strip"
+        className={`card mb-4 flex min-h-14 items-center gap-3 border-l-[8px] p-3 text-lg font-bold hover:bg-surface-2 ${
+          openAlerts > 0
+            ? "border-l-alarm bg-alarm-bg text-alarm"
+            : inHandAlerts > 0
+              ? "border-l-warn"
+              : "border-l-ok"
+        }`}
+      >
+        <span aria-hidden="true">{openAlerts > 0 ? "■" : inHandAlerts > 0 ? "▲" : "●"}</span>
+        <span className={openAlerts > 0 ? "" : "text-ink"}>
+          {openAlerts > 0
+            ? `${openAlerts} ${openAlerts === 1 ? "alert needs" : "alerts need"} someone`
+            : "No open alerts"}
+          {(inHandAlerts > 0 || openNotes > 0) && (
+            <span className="font-semibold">
+              {inHandAlerts > 0 &&
+                ` · ${inHandAlerts} acknowledged${openAlerts === 0 ? ", not yet cleared" : ""}`}
+              {openNotes > 0 && ` · ${openNotes} ${openNotes === 1 ? "note" : "notes"}`}
+            </span>
+          )}
+        </span>
+        <span className="ml-auto text-base font-semibold text-accent underline">Alerts</span>
+      </a>
       <div className="mb-4 flex flex-wrap items-center gap-3">
         <p
           role="status"
@@ -184,20 +279,54 @@ export default function FloorLive({ areas: initial, units, nowMs }: Props) {
               const st = states.get(t.id)!;
               const temp = t.tempC === null ? null : displayTemp(t.tempC, units);
               const ago = t.lastSeenAtMs === null ? null : formatDuration(now - t.lastSeenAtMs);
+              const tileAlerts = alertsBySensor.get(t.id) ?? [];
+              const alert = tileAlerts[0];
+              const alertOpen = alert?.state === "open";
               return (
-                <li key={t.id} data-sensor={t.id} data-state={st}>
+                <li
+                  key={t.id}
+                  data-sensor={t.id}
+                  data-state={st}
+                  data-alert={alert ? alert.state : undefined}
+                >
                   <a
                     href={`/sensors/${encodeURIComponent(t.id)}`}
-                    className={`card block h-full border-l-[6px] p-3 hover:bg-surface-2 ${tone[st].band}`}
+                    className={`card block h-full border-l-[6px] p-3 hover:bg-surface-2 ${
+                      alertOpen
+                        ? "border-2 border-alarm border-l-[10px] border-l-alarm"
+                        : alert
+                          ? "border-l-warn"
+                          : tone[st].band
+                    }`}
                   >
+                    {alert && (
+                      <p
+                        className={`-mx-1 -mt-1 mb-2 rounded-md px-2 py-1 text-sm font-extrabold leading-tight ${
+                          alertOpen ? "bg-alarm text-bg" : "bg-warn-bg text-warn"
+                        }`}
+                        data-testid="tile-alert"
+                      >
+                        <span className="whitespace-nowrap">
+                          <span aria-hidden="true">{alertOpen ? "■ " : "▲ "}</span>
+                          {alertOpen ? "ALERT" : "ACKNOWLEDGED"}
+                        </span>{" "}
+                        · {alert.rule}
+                        {tileAlerts.length > 1 && (
+                          <span className="font-semibold"> (+{tileAlerts.length - 1} more)</span>
+                        )}
+                      </p>
+                    )}
                     <div className="flex items-start justify-between gap-1">
                       <span className="figure text-sm font-bold">{t.id}</span>
-                      <span
-                        className={`rounded-full px-2 py-0.5 text-xs font-bold ${tone[st].badge}`}
-                      >
-                        <span aria-hidden="true">{tone[st].mark} </span>
-                        {tileLabels[st]}
-                      </span>
+                      {/* An "OK" beside an alert would contradict it: the alert speaks alone. */}
+                      {!(alert && st === "ok") && (
+                        <span
+                          className={`rounded-full px-2 py-0.5 text-xs font-bold ${tone[st].badge}`}
+                        >
+                          <span aria-hidden="true">{tone[st].mark} </span>
+                          {tileLabels[st]}
+                        </span>
+                      )}
                     </div>
                     <p
                       className="figure mt-1 text-3xl font-bold leading-tight"

@@ -35,6 +35,16 @@ const labels: Record<string, string> = {
   "pour.sensors_changed": "Pour's sensors changed",
   "pour.status_changed": "Pour's status changed",
   "break.recorded": "Cylinder break entered",
+  "alert.acknowledge": "Alert acknowledged",
+  "alert.opened": "Alert opened",
+  "alert.cleared": "Alert cleared",
+  "alert.escalated": "Alert escalated to the next person on call",
+  "alert_rule.create": "Alert rule added",
+  "alert_rule.update": "Alert rule changed",
+  "alert_rule.delete": "Alert rule deleted",
+  "on_call.create": "On-call shift added",
+  "on_call.update": "On-call shift changed",
+  "on_call.delete": "On-call shift removed",
 };
 
 export function auditLabel(action: string): string {

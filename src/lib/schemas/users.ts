@@ -1,13 +1,16 @@
 import { z } from "zod";
 import { roles } from "@/lib/access";
 
-/** E.164-style phone for texts: + and 8 to 15 digits; spaces, dashes and brackets are dropped. */
+/**
+ * E.164 phone for texts: + and 8 to 15 digits (ITU-T E.164 allows at most 15); spaces,
+ * dashes, dots and brackets are dropped. Empty means no phone.
+ */
 export const phoneField = z
   .string()
   .trim()
   .transform((s) => s.replace(/[\s().-]/g, ""))
   .refine((s) => s === "" || /^\+[1-9][0-9]{7,14}$/.test(s), {
-    message: "Use the international form, e.g. +1 555 010 0123",
+    message: "Use the international form: + and country code, 8 to 15 digits, e.g. +1 555 010 0123",
   })
   .transform((s) => (s === "" ? null : s));
 
@@ -33,8 +36,13 @@ export const profilePatchBody = z
     phone: phoneField.nullable(),
     units: z.enum(["us", "si"]),
     theme: z.enum(["system", "light", "dark"]),
-    notify_sms: z.boolean(),
-    notify_email: z.boolean(),
+    notify_sms: z.boolean().describe("alert texts to your phone"),
+    notify_email: z.boolean().describe("alert e-mails"),
+    notify_digest: z
+      .boolean()
+      .describe(
+        "the daily digest e-mail of minor alerts; never set, it is on for QC and managers and off for others",
+      ),
   })
   .partial()
   .strict();

@@ -33,6 +33,10 @@ const envSchema = z.object({
   NOTIFY_FAKES: z.enum(["0", "1"]).optional(),
   NOTIFY_FAKE_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(0),
   NOTIFY_FAKE_SMS_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+  // Alerts: src/lib/server/alerts/.
+  ALERT_TICK_SECONDS: z.coerce.number().min(0.05).max(3600).default(15),
+  ALERT_DIGEST_HOUR: z.coerce.number().int().min(0).max(23).default(7),
+  ALERT_DIGEST_EVERY_MINUTES: z.coerce.number().positive().optional(),
 });
 
 export type Env = z.infer<typeof envSchema>;

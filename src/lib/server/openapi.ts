@@ -36,12 +36,10 @@ import {
 import { releaseCreateBody } from "@/lib/schemas/releases";
 import { loggerPreviewBody, loggerUploadBody } from "./uploads/parse";
 
-interface Doc {
-  summary: string;
-  body?: z.ZodType;
-  response?: z.ZodType;
-  query?: Record<string, string>;
-}
+import { alertRulesDocs } from "./openapi/alertRules";
+import { alertsDocs } from "./openapi/alerts";
+import type { Doc } from "./openapi/doc";
+import { onCallDocs } from "./openapi/onCall";
 
 const sensorOut = z.object({
   id: z.string(),
@@ -61,7 +59,8 @@ const docs: Record<string, Doc> = {
     response: readingBatchAnswer,
   },
   "GET /api/v1/live": {
-    summary: "Server-sent events: `readings` as they are committed, and `sensor` changes.",
+    summary:
+      "Server-sent events: `readings` as they are committed, `sensor` changes, and `alert` episodes as they open, worsen, are acknowledged and clear.",
   },
   "GET /api/v1/me": { summary: "Your own account." },
   "PATCH /api/v1/me": {
@@ -241,6 +240,9 @@ const docs: Record<string, Doc> = {
       bins: "comma-separated bin ids to average (default: every reporting bin)",
     },
   },
+  ...alertsDocs,
+  ...alertRulesDocs,
+  ...onCallDocs,
 };
 
 const problem = {

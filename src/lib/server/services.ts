@@ -11,8 +11,10 @@ import { seedDemoPlant } from "./demo/seed";
 import { latestReadingTs, pourCastAt } from "./db/queries/plant";
 import { startEmbeddedBroker, type EmbeddedBroker } from "./mqtt/broker";
 import { startSubscriber, type Subscriber } from "./mqtt/subscriber";
+import { startAlertEngine, stopAlertEngine } from "./alerts/engine";
 import { bus, type ReadingEvent } from "./live/bus";
 import { advanceOpenPours, dropMaturityStates, reconcileMaturity } from "./strength/maturity";
+import { startReadingsRollup } from "./rollup/service";
 
 export interface ServicesOptions {
   demo?: boolean;
@@ -35,8 +37,10 @@ export async function startServices(options: ServicesOptions = {}): Promise<void
   migrateDatabase(db);
   if (options.demo) await seedDemoPlant();
   reconcileMaturity();
+  startReadingsRollup();
   await startNoticesPart(Boolean(options.demo));
   bus().on("readings", onReadings);
+  startAlertEngine();
   const state: State = { started: true, demo: Boolean(options.demo) };
   if (e.MQTT_URL) state.subscriber = startSubscriber(e.MQTT_URL, e.MQTT_CLIENT_ID);
   else state.broker = await startEmbeddedBroker(e.MQTT_HOST, e.MQTT_PORT);
@@ -65,6 +69,7 @@ export async function stopServices(): Promise<void> {
   if (!state?.started) return;
   state.started = false;
   bus().off("readings", onReadings);
+  stopAlertEngine();
   await state.subscriber?.close();
   await state.broker?.close();
   await stopNoticesPart();

@@ -32,8 +32,14 @@ import {
   users,
 } from "../db/schema";
 import { nextCalibrationDue } from "@/domain/calibration";
+import {
+  equivalentAgeAtConstantTempH,
+  LAB_CURING_TEMP_C,
+  ttfAtConstantTempCH,
+} from "@/domain/calibrationPoints";
 import { fitStrengthCurve } from "@/domain/strength/curves";
 import { log } from "../log";
+import { seedDemoAlerting } from "./alerts";
 import { seedDemoReleases } from "./releases";
 
 export const DEMO_PASSWORD = "demo-plinth-pass";
@@ -161,14 +167,24 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
         .returning({ id: mixes.id })
         .get();
       mixIds.set(m.name, row.id);
-      // Invented breaks of lab-cured cylinders at 23 °C: maturity = age × (23 − datum).
-      if (m.breaks.length >= 4) {
+      // Invented breaks of lab-cured cylinders held at 23 °C (ASTM C511 moist room) from
+      // moulding to the break: maturity = age × (23 − datum), and the equivalent age at 20 °C
+      // by the Arrhenius function with the mix's activation energy.
+      const labBreaks = m.breaks.map(([days, psi]) => ({
+        days,
+        ageH: days * 24,
+        ttfCH: ttfAtConstantTempCH(days * 24, LAB_CURING_TEMP_C, m.datumC),
+        equivalentAgeH: equivalentAgeAtConstantTempH(
+          days * 24,
+          LAB_CURING_TEMP_C,
+          m.activationEnergyJMol,
+        ),
+        strengthMpa: psiToMpa(psi),
+      }));
+      if (labBreaks.length >= 4) {
         const fit = fitStrengthCurve(
           "log",
-          m.breaks.map(([days, psi]) => ({
-            ttfCH: days * 24 * (23 - m.datumC),
-            strengthMpa: psiToMpa(psi),
-          })),
+          labBreaks.map((b) => ({ ttfCH: b.ttfCH, strengthMpa: b.strengthMpa })),
         );
         const { model, ...params } = fit.curve;
         const cal = tx
@@ -178,7 +194,7 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
             model,
             paramsJson: JSON.stringify(params),
             r2: fit.r2,
-            pointCount: m.breaks.length,
+            pointCount: labBreaks.length,
             warningsJson: JSON.stringify(fit.warnings),
             createdBy: qc.id,
             createdAt: nowMs - 12 * 24 * HOUR_MS,
@@ -187,15 +203,16 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
           .get();
         tx.update(mixes).set({ currentCalibrationId: cal.id }).where(eq(mixes.id, row.id)).run();
       }
-      for (const [days, psi] of m.breaks) {
+      for (const b of labBreaks) {
         tx.insert(calibrationPoints)
           .values({
             mixId: row.id,
-            ageH: days * 24,
-            ttfCH: days * 24 * (23 - m.datumC),
-            strengthMpa: psiToMpa(psi),
-            specimens: `${m.name}-CAL-${days}d (3 cylinders)`,
-            brokenAt: nowMs - (40 - days) * 24 * HOUR_MS,
+            ageH: b.ageH,
+            ttfCH: b.ttfCH,
+            equivalentAgeH: b.equivalentAgeH,
+            strengthMpa: b.strengthMpa,
+            specimens: `${m.name}-CAL-${b.days}d (3 cylinders)`,
+            brokenAt: nowMs - (40 - b.days) * 24 * HOUR_MS,
             createdBy: qc.id,
           })
           .run();
@@ -267,6 +284,8 @@ export async function seedDemoPlant(nowMs = Date.now()): Promise<boolean> {
   total += insertReadings(batch);
   // QC's past strip sign-offs of the two oldest pours, on the readings just stored.
   seedDemoReleases(nowMs);
+  // Default alert rules and the operator on call around the clock.
+  seedDemoAlerting();
 
   writeAudit({ label: "system" }, { action: "demo.seeded", detail: { readings: total } }, nowMs);
   log.info("demo plant seeded", { readings: total, ms: Date.now() - started });

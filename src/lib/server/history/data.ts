@@ -41,6 +41,7 @@ import {
   type ProductRow,
   type ReleaseRecord,
 } from "../db/queries/history";
+import { ackViaOf } from "../db/queries/alertViews";
 import { getSetting } from "../db/queries/settings";
 import { currentCurve, getPourWithMix, type MixRow, type PourRow } from "../db/queries/strength";
 
@@ -110,20 +111,32 @@ export interface PourHistoryData {
   ship: HistoryMilestone;
   breaks: BreakRecord[];
   releases: ReleaseRecord[];
-  episodes: EpisodeRecord[];
+  episodes: HistoryEpisode[];
   audit: AuditRecord[];
 }
+
+/** An alert episode of the pour with what was done about it, and how it was acknowledged. */
+export type HistoryEpisode = EpisodeRecord & { ackVia: "web" | "sms" | null };
 
 export interface HistoryOptions {
   asOfMs?: number;
 }
 
+/**
+ * One sensor's part of the record. Its readings are read, folded and thinned one sensor at a
+ * time, and only what the page needs is kept: a week of minutes is ten thousand rows a sensor,
+ * and holding every sensor's rows at once would only make work for the garbage collector.
+ */
 interface Track {
   a: HistoryAssignment;
   fromMs: number;
-  rows: ReadingRow[];
   track: MaturityTrack;
   state: MaturityState;
+  temps: HistorySensor["temps"];
+  minTempC: number | null;
+  maxTempC: number | null;
+  /** The readings the forecast's mean temperature may use: those of the last hours. */
+  recent: ReadingRow[];
 }
 
 /** The readings window of an assignment, as the strength view counts it. */
@@ -163,9 +176,7 @@ function milestone(
       asOfMs,
       ttfCH: t.state.ttfCH,
       meanTempC: meanTempOverWindowC(
-        t.rows
-          .slice(firstIndexAtOrAfter(t.rows, asOfMs - (FORECAST_WINDOW_H + 2) * H_MS))
-          .map(([tsMs, tempC]) => ({ tsMs, tempC })),
+        t.recent.map(([tsMs, tempC]) => ({ tsMs, tempC })),
         asOfMs,
         FORECAST_WINDOW_H,
       ),
@@ -222,33 +233,38 @@ export function pourHistoryData(
     pour.status === "curing" || pour.status === "stripped" || pour.status === "ready_to_ship";
 
   const assignments = listHistoryAssignments(pourId);
+  const tempPerSensor = Math.min(
+    TEMP_POINTS_MAX,
+    Math.max(TEMP_POINTS_MIN, Math.floor(TEMP_POINTS_BUDGET / Math.max(1, assignments.length))),
+  );
   const tracks: Track[] = assignments.map((a) => {
     const w = windowOf(a, pour.castAt);
     const rows = w.toMs >= w.fromMs ? readingRows(a.sensorId, w.fromMs, w.toMs) : [];
     const { track, state } = maturityTrack(rows, pour.castAt, params);
-    return { a, fromMs: w.fromMs, rows, track, state };
+    const keep = thinRows(rows, tempPerSensor, w.fromMs, rows.at(-1)?.[0]);
+    let minTempC: number | null = null;
+    let maxTempC: number | null = null;
+    for (const [, tempC] of rows) {
+      if (minTempC === null || tempC < minTempC) minTempC = tempC;
+      if (maxTempC === null || tempC > maxTempC) maxTempC = tempC;
+    }
+    const recent = open
+      ? rows.slice(firstIndexAtOrAfter(rows, asOfMs - (FORECAST_WINDOW_H + 2) * H_MS))
+      : [];
+    const temps = columnsOfTemps(rows, keep);
+    return { a, fromMs: w.fromMs, track, state, temps, minTempC, maxTempC, recent };
   });
 
   // Decisions follow the sensors on the pour now; a pour with none left keeps its last ones.
   const current = tracks.filter((t) => t.a.toAt === null);
   const used = current.length > 0 ? current : tracks;
   const usedIds = new Set(used.map((t) => t.a.id));
-  const tempPerSensor = Math.min(
-    TEMP_POINTS_MAX,
-    Math.max(TEMP_POINTS_MIN, Math.floor(TEMP_POINTS_BUDGET / Math.max(1, tracks.length))),
-  );
   const closedAtMs = open ? asOfMs : (pour.shippedAt ?? asOfMs);
 
   const sensors: HistorySensor[] = tracks.map((t) => {
-    const keep = thinRows(t.rows, tempPerSensor, t.fromMs, t.rows.at(-1)?.[0]);
     const tsMs = t.track.tsMs.subarray(0, t.track.length);
     const maturity = thinRising(tsMs, MATURITY_POINTS_PER_SENSOR);
-    let minTempC: number | null = null;
-    let maxTempC: number | null = null;
-    for (const [, tempC] of t.rows) {
-      if (minTempC === null || tempC < minTempC) minTempC = tempC;
-      if (maxTempC === null || tempC > maxTempC) maxTempC = tempC;
-    }
+    const { minTempC, maxTempC } = t;
     const completeAsOf = Math.min(closedAtMs, t.a.toAt ?? closedAtMs);
     return {
       assignmentId: t.a.id,
@@ -268,7 +284,7 @@ export function pourHistoryData(
       equivalentAgeH: t.state.equivalentAgeH,
       strengthMpa: curve ? strengthAt(curve, t.state.ttfCH) : null,
       completeRecord: recordCompleteAsOf(t.state, completeAsOf),
-      temps: columnsOfTemps(t.rows, keep),
+      temps: t.temps,
       maturity: {
         tsMs: maturity.map((i) => t.track.tsMs[i]!),
         ttfCH: maturity.map((i) => t.track.ttfCH[i]!),
@@ -292,10 +308,15 @@ export function pourHistoryData(
 
   const breaks = listPourBreaks(pourId);
   const releaseRows = listPourReleases(pourId);
-  const episodes = listPourAlertEpisodes(
+  const episodeRows = listPourAlertEpisodes(
     pourId,
     tracks.map((t) => ({ sensorId: t.a.sensorId, fromMs: t.fromMs, toMs: t.a.toAt })),
   );
+  const via = ackViaOf(episodeRows.map((e) => e.id));
+  const episodes: HistoryEpisode[] = episodeRows.map((e) => ({
+    ...e,
+    ackVia: via.get(e.id) ?? null,
+  }));
   const audit = listPourAudit({
     pourId,
     assignmentIds: assignments.map((a) => a.id),

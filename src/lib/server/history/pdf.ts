@@ -6,6 +6,7 @@
  * follow the reader; the standard Helvetica faces keep the file small and need no font files.
  */
 import PDFDocument from "pdfkit";
+import { ackViaWords, alertValueText, severityLook } from "@/domain/alerts/episodeWords";
 import { breakToEstimateRatio, displayDatum } from "@/domain/history";
 import { cToF, mpaToPsi, type UnitSystem } from "@/domain/units";
 import { formatDateTime } from "@/lib/format";
@@ -687,18 +688,27 @@ function episodesTable(ctx: Ctx): void {
     [
       { header: "Alert", width: 100 },
       { header: "Sensor", width: 50 },
-      { header: "Opened", width: 80 },
-      { header: "Acknowledged, note", width: 150 },
-      { header: "Cleared", width: 80 },
-      { header: "State", width: 60 },
+      { header: "Opened", width: 76 },
+      { header: "Worst", width: 52, align: "right" },
+      { header: "Acknowledged (who, when, how), note", width: 150 },
+      { header: "Cleared", width: 76 },
+      { header: "State", width: 56 },
     ],
     data.episodes.map((e) => [
-      e.rule,
+      `${e.rule} (${severityLook[e.severity].word})`,
       e.sensorId ?? "—",
       when(ctx, e.openedAt),
+      e.worstValue === null ? "—" : alertValueText(e.ruleKind, e.worstValue, ctx.units),
       e.acknowledgedAt === null
         ? "—"
-        : [when(ctx, e.acknowledgedAt), e.acknowledgedBy, e.ackNote].filter(Boolean).join(" · "),
+        : [
+            e.acknowledgedBy,
+            when(ctx, e.acknowledgedAt),
+            e.ackVia ? ackViaWords[e.ackVia] : null,
+            e.ackNote ? `"${e.ackNote}"` : null,
+          ]
+            .filter(Boolean)
+            .join(" · "),
       when(ctx, e.clearedAt),
       episodeStateLabels[e.state],
     ]),

@@ -22,10 +22,28 @@ export interface GatewayEvent {
   change: "revoked";
 }
 
+/** An alert episode opened, worsened, acknowledged or cleared. */
+export interface AlertEvent {
+  episodeId: number;
+  change: "opened" | "worsened" | "acknowledged" | "cleared";
+  state: "open" | "acknowledged" | "cleared";
+  ruleId: number;
+  sensorId: string | null;
+  pourId: number | null;
+  severity: "info" | "warning" | "critical";
+}
+
+/** Alert rules or the on-call rota changed: the alert engine reloads them. */
+export interface AlertConfigEvent {
+  what: "rules" | "on_call";
+}
+
 interface BusEvents {
   readings: [ReadingEvent[]];
   sensor: [SensorEvent];
   gateway: [GatewayEvent];
+  alert: [AlertEvent];
+  alertConfig: [AlertConfigEvent];
 }
 
 const KEY = Symbol.for("plinth.bus");

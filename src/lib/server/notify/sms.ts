@@ -76,7 +76,13 @@ export function createSmsSender(config: SmsConfig): Sender {
   return {
     channel: "sms",
     async send(notice: OutboxRow) {
-      const { client, http } = createSmsClient(config, `plinth-notice-${notice.dedupeKey}`);
+      // Stable across this row's retries, and distinct from another database's row with
+      // the same dedupe key (a second installation, a restored backup): the queueing time
+      // goes with it.
+      const { client, http } = createSmsClient(
+        config,
+        `plinth-notice-${notice.dedupeKey}-${notice.createdAt}`,
+      );
       try {
         const message = await client.messages.create({
           to: notice.toAddress,

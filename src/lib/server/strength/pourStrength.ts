@@ -5,7 +5,6 @@
  * when it was reached and, if not yet, when it is forecast.
  */
 import { recordCompleteAsOf } from "@/domain/maturity/accumulator";
-import { ttfReachedAt } from "@/domain/maturity/crossing";
 import { meanTempOverWindowC } from "@/domain/maturity/readings";
 import {
   FORECAST_WINDOW_H,
@@ -15,9 +14,9 @@ import {
   type StrengthCurve,
 } from "@/domain/strength/curves";
 import { mpaToPsi } from "@/domain/units";
-import { readingsForAssignment, type MaturityAssignment } from "../db/queries/maturity";
+import type { MaturityAssignment } from "../db/queries/maturity";
 import { currentCurve, getPourWithMix } from "../db/queries/strength";
-import { pourMaturity } from "./maturity";
+import { pourMaturity, RECENT_WINDOW_MS, recentReadingsFor, ttfReachedAtFor } from "./maturity";
 
 export interface SensorStrength {
   sensor: string;
@@ -65,12 +64,7 @@ function milestone(
   if (items.every((i) => i.ttfCH >= target)) {
     let latest = 0;
     for (const i of items) {
-      const at = ttfReachedAt(
-        readingsForAssignment(i.a),
-        i.a.castAtMs,
-        { datumC: i.a.datumC, activationEnergyJMol: i.a.activationEnergyJMol },
-        target,
-      );
+      const at = ttfReachedAtFor(i.a, target);
       if (at === null) return out;
       latest = Math.max(latest, at);
     }
@@ -80,7 +74,7 @@ function milestone(
   let latest = 0;
   for (const i of items) {
     if (i.ttfCH >= target) continue;
-    const recent = readingsForAssignment(i.a, asOfMs - (FORECAST_WINDOW_H + 2) * 3_600_000);
+    const recent = recentReadingsFor(i.a, asOfMs - RECENT_WINDOW_MS);
     const meanTempC = meanTempOverWindowC(recent, asOfMs, FORECAST_WINDOW_H);
     const at = forecastThresholdAt({
       asOfMs,

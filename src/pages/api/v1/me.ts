@@ -1,4 +1,5 @@
 import type { APIRoute } from "astro";
+import { mergeNotifyChoices } from "@/lib/notifyChoices";
 import { profilePatchBody } from "@/lib/schemas/users";
 import { writeAudit } from "@/lib/server/db/queries/audit";
 import {
@@ -21,18 +22,17 @@ export const PATCH: APIRoute = endpoint(async (ctx) => {
   const me = requireUser(ctx.locals, "self.manage");
   const parsed = await parseBody(ctx.request, profilePatchBody);
   if (!parsed.ok) return parsed.response;
-  const { notify_sms, notify_email, ...rest } = parsed.data;
+  const { notify_sms, notify_email, notify_digest, ...rest } = parsed.data;
   const current = getUser(me.id)!;
   if (rest.email && rest.email !== current.email && findUserByEmail(rest.email)) {
     return conflict("Another account already uses that e-mail.");
   }
   const patch: UserPatch = { ...rest };
-  if (notify_sms !== undefined || notify_email !== undefined) {
-    const prev = JSON.parse(current.notifyJson) as { sms?: boolean; email?: boolean };
-    patch.notifyJson = JSON.stringify({
-      ...prev,
-      ...(notify_sms !== undefined && { sms: notify_sms }),
-      ...(notify_email !== undefined && { email: notify_email }),
+  if (notify_sms !== undefined || notify_email !== undefined || notify_digest !== undefined) {
+    patch.notifyJson = mergeNotifyChoices(current.notifyJson, {
+      sms: notify_sms,
+      email: notify_email,
+      digest: notify_digest,
     });
   }
   const updated = updateUser(me.id, patch)!;

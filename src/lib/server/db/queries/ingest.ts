@@ -1,5 +1,6 @@
 import type { CleanReading } from "@/domain/readings";
 import { applyOffsets } from "@/domain/readings";
+import { rollupBucketStart } from "@/domain/thinning";
 import { getSqlite } from "../client";
 
 export interface StoreResult {
@@ -22,8 +23,16 @@ function prepare() {
   return {
     sensor: db.prepare<
       [string],
-      { temp_offset_c: number; rh_offset_pct: number; last_seen_at: number | null }
-    >("select temp_offset_c, rh_offset_pct, last_seen_at from sensors where id = ?"),
+      {
+        temp_offset_c: number;
+        rh_offset_pct: number;
+        last_seen_at: number | null;
+        rolled_ms: number | null;
+      }
+    >(
+      `select s.temp_offset_c, s.rh_offset_pct, s.last_seen_at, m.rolled_ms
+       from sensors s left join readings_rollup_marks m on m.sensor_id = s.id where s.id = ?`,
+    ),
     register: db.prepare<[string, number, number | null]>(
       "insert into sensors (id, status, created_at, last_gateway_id) values (?, 'new', ?, ?) on conflict do nothing",
     ),
@@ -36,6 +45,10 @@ function prepare() {
       `update sensors set last_seen_at = ?, last_temp_c = ?, last_rh_pct = ?,
          battery_pct = coalesce(?, battery_pct), last_gateway_id = coalesce(?, last_gateway_id)
        where id = ? and (last_seen_at is null or last_seen_at < ?)`,
+    ),
+    // A reading stored into a rolled-up bucket: the rollup is complete only before it now.
+    unroll: db.prepare<[number, string, number]>(
+      "update readings_rollup_marks set rolled_ms = ? where sensor_id = ? and rolled_ms > ?",
     ),
     gatewayUsed: db.prepare<[number, number]>("update gateways set last_used_at = ? where id = ?"),
   };
@@ -54,7 +67,10 @@ function statements(): Statements {
  * Stores a batch of checked readings in one transaction: registers unknown sensors as new,
  * applies each sensor's calibration offsets, skips a reading already stored for the same
  * sensor and time (the first value stands), and moves each sensor's last-seen values forward
- * only for readings newer than what it had. Returns when the transaction has committed.
+ * only for readings newer than what it had. A reading stored into a bucket the readings
+ * rollup already holds lowers the sensor's rollup mark to that bucket (queries/rollup.ts), so
+ * the next roll-up rewrites it: one lookup per sensor and batch, no work per reading.
+ * Returns when the transaction has committed.
  */
 export function storeReadings(
   readings: readonly CleanReading[],
@@ -71,6 +87,8 @@ export function storeReadings(
         tempOffset: number;
         rhOffset: number;
         lastSeen: number | null;
+        rolledMs: number | null;
+        oldestTs: number;
         newest: (CleanReading & { latest: boolean }) | null;
       }
     >();
@@ -84,12 +102,14 @@ export function storeReadings(
         if (!row) {
           s.register.run(raw.sensorId, nowMs, gatewayId);
           newSensors.push(raw.sensorId);
-          row = { temp_offset_c: 0, rh_offset_pct: 0, last_seen_at: null };
+          row = { temp_offset_c: 0, rh_offset_pct: 0, last_seen_at: null, rolled_ms: null };
         }
         info = {
           tempOffset: row.temp_offset_c,
           rhOffset: row.rh_offset_pct,
           lastSeen: row.last_seen_at,
+          rolledMs: row.rolled_ms,
+          oldestTs: Infinity,
           newest: null,
         };
         sensors.set(raw.sensorId, info);
@@ -103,8 +123,13 @@ export function storeReadings(
       const kept = { ...r, latest: false };
       stored.push(kept);
       if (!info.newest || r.tsMs > info.newest.tsMs) info.newest = kept;
+      if (r.tsMs < info.oldestTs) info.oldestTs = r.tsMs;
     }
     for (const [id, info] of sensors) {
+      if (info.rolledMs !== null && info.oldestTs < info.rolledMs) {
+        const bucketMs = rollupBucketStart(info.oldestTs);
+        s.unroll.run(bucketMs, id, bucketMs);
+      }
       const n = info.newest;
       if (!n || (info.lastSeen !== null && n.tsMs <= info.lastSeen)) continue;
       s.touch.run(n.tsMs, n.tempC, n.rhPct, n.batteryPct, gatewayId, id, n.tsMs);

@@ -1,4 +1,4 @@
-import { eq, inArray } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
 import type { MaturityState } from "@/domain/maturity/accumulator";
 import { getDb, getSqlite } from "../client";
 import { mixes, pourSensorMaturity, pourSensors, pours } from "../schema";
@@ -60,6 +60,18 @@ export function listOpenAssignments(): MaturityAssignment[] {
     .innerJoin(pours, eq(pours.id, pourSensors.pourId))
     .innerJoin(mixes, eq(mixes.id, pours.mixId))
     .where(inArray(pours.status, [...OPEN_POUR_STATUSES]))
+    .all()
+    .map(toAssignment);
+}
+
+/** The assignments of one pour while it is open (none once it is shipped or void). */
+export function listOpenPourAssignments(pourId: number): MaturityAssignment[] {
+  return getDb()
+    .select(assignmentColumns)
+    .from(pourSensors)
+    .innerJoin(pours, eq(pours.id, pourSensors.pourId))
+    .innerJoin(mixes, eq(mixes.id, pours.mixId))
+    .where(and(eq(pourSensors.pourId, pourId), inArray(pours.status, [...OPEN_POUR_STATUSES])))
     .all()
     .map(toAssignment);
 }

@@ -26,6 +26,52 @@ export const readings = sqliteTable(
   (t) => [primaryKey({ columns: [t.sensorId, t.ts] }), index("readings_ts_idx").on(t.ts)],
 );
 
+/**
+ * Each sensor's readings in fixed 15-minute buckets (bucket_ms: the bucket's start, epoch ms,
+ * a multiple of 900,000), each row holding the bucket's extreme readings whole (time, °C and
+ * RH of the reading with the lowest temperature, the highest temperature, the lowest RH and
+ * the highest RH; the earliest such reading on a tie) and how many readings it has. Long
+ * chart windows are thinned from it (src/domain/thinning.ts). A bucket without readings has
+ * no row. Only buckets before the sensor's mark in readings_rollup_marks are complete; rows
+ * at or after it are stale and rewritten by the next roll-up. WITHOUT ROWID (migration 0005).
+ */
+export const readingsRollup = sqliteTable(
+  "readings_rollup",
+  {
+    sensorId: text("sensor_id")
+      .notNull()
+      .references(() => sensors.id),
+    bucketMs: epochMs("bucket_ms").notNull(),
+    readings: integer("readings").notNull(),
+    loTempTs: epochMs("lo_temp_ts").notNull(),
+    loTempC: real("lo_temp_c").notNull(),
+    loTempRhPct: real("lo_temp_rh_pct"),
+    hiTempTs: epochMs("hi_temp_ts").notNull(),
+    hiTempC: real("hi_temp_c").notNull(),
+    hiTempRhPct: real("hi_temp_rh_pct"),
+    loRhTs: epochMs("lo_rh_ts"),
+    loRhTempC: real("lo_rh_temp_c"),
+    loRhPct: real("lo_rh_pct"),
+    hiRhTs: epochMs("hi_rh_ts"),
+    hiRhTempC: real("hi_rh_temp_c"),
+    hiRhPct: real("hi_rh_pct"),
+  },
+  (t) => [primaryKey({ columns: [t.sensorId, t.bucketMs] })],
+);
+
+/**
+ * How far each sensor's rollup is complete: every 15-minute bucket ending at or before
+ * rolled_ms matches the readings. Ingest lowers it when a reading lands before it (a late
+ * reading, a logger file's backfill); the roll-up (src/lib/server/rollup/) raises it. No row:
+ * nothing rolled up yet.
+ */
+export const readingsRollupMarks = sqliteTable("readings_rollup_marks", {
+  sensorId: text("sensor_id")
+    .primaryKey()
+    .references(() => sensors.id),
+  rolledMs: epochMs("rolled_ms").notNull(),
+});
+
 /** Logger files uploaded by hand, and lab files of cylinder breaks. */
 export const uploads = sqliteTable(
   "uploads",

@@ -40,8 +40,9 @@ export const GET: APIRoute = endpoint(async ({ locals, params, url }) => {
     return badRequest("The window is over 400 days.", [
       { field: "from", error: "window too long" },
     ]);
-  // A window far longer than the points wanted (at one reading a minute) is thinned inside
-  // SQLite, so a month of readings never has to cross into JavaScript; the rule is the same.
+  // A window far longer than the points wanted (at one reading a minute) is thinned from the
+  // 15-minute readings rollup (buckets on the quarter hours, each keeping its extremes), so a
+  // month of readings never has to be read row by row.
   const max = parsed.data.max_points;
   const long = (to - from) / 60_000 > 4 * max;
   const rows = long
