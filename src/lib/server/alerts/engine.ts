@@ -822,11 +822,11 @@ function checkPours(nowMs: number): void {
       )
       .all();
     for (const d of done) s.episodeOf.set(trackKey(d.ruleId, `pour:${pour.id}`), -1);
-    const todo = pending.filter((r) => !done.some((d) => d.ruleId === r.id));
-    if (todo.length === 0) continue;
+    const unchecked = pending.filter((r) => !done.some((d) => d.ruleId === r.id));
+    if (unchecked.length === 0) continue;
     const view = pourStrength(pour.id, nowMs);
     if (!view || !view.calibrated) continue;
-    for (const r of todo) {
+    for (const r of unchecked) {
       const m = r.kind === "pour_strip" ? view.strip : view.ship;
       if (!m.reached_at) continue;
       const governing = view.sensors.find((x) => x.sensor === view.governing_sensor);
