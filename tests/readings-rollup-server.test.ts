@@ -1,6 +1,7 @@
 import Database from "better-sqlite3";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { call, demoEmail, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import { bruteRollupRows, bruteThin, ROLLUP_COLUMNS, type Reading } from "./helpers/thinning";
 
 // The chart window (contracts.md: GET /api/v1/sensors/{id}/readings, "thinned to at most
 // max_points for charts without hiding a peak or a dip") from the readings rollup, against
@@ -9,13 +10,6 @@ import { call, demoEmail, signIn, startPlinth, type RunningPlinth } from "./help
 const KEY = "demo-gateway-key-0001";
 const MIN = 60_000;
 const HOUR = 3_600_000;
-const QUARTER = 900_000;
-
-interface Reading {
-  tsMs: number;
-  tempC: number;
-  rhPct: number | null;
-}
 
 let plinth: RunningPlinth;
 let dir: string;
@@ -58,49 +52,6 @@ async function chart(sensor: string, fromMs: number, toMs: number, maxPoints: nu
   return body.readings.map((r) => ({ tsMs: Date.parse(r.ts), tempC: r.temp_c, rhPct: r.rh }));
 }
 
-/** Written apart from the code under test: a group's extremes by sorting, earliest on a tie. */
-function extremesOf(group: readonly Reading[]): Reading[] {
-  const rh = group.filter((r) => r.rhPct !== null);
-  const first = (xs: Reading[], cmp: (a: Reading, b: Reading) => number) =>
-    [...xs].sort((a, b) => cmp(a, b) || a.tsMs - b.tsMs)[0];
-  const picks = [
-    first([...group], (a, b) => a.tempC - b.tempC),
-    first([...group], (a, b) => b.tempC - a.tempC),
-    first(rh, (a, b) => a.rhPct! - b.rhPct!),
-    first(rh, (a, b) => b.rhPct! - a.rhPct!),
-  ].filter((r): r is Reading => r !== undefined);
-  return [...new Map(picks.map((r) => [r.tsMs, r])).values()].sort((a, b) => a.tsMs - b.tsMs);
-}
-
-/**
- * Brute-force thinning of what is stored, written apart from the code under test: the window
- * [from, to] in `count` buckets of thinSeries's width (to + 1 − from) / count; when that is at
- * least half an hour, bucket k >= 1 starts at the quarter hour at or before from + k·width,
- * else thinSeries's equal cut (its arithmetic). Each bucket's extremes; a window with no more
- * than 4 × count readings whole.
- */
-function bruteThin(stored: readonly Reading[], from: number, to: number, count: number) {
-  const inWindow = stored
-    .filter((r) => r.tsMs >= from && r.tsMs <= to)
-    .sort((a, b) => a.tsMs - b.tsMs);
-  if (inWindow.length <= 4 * count) return inWindow;
-  const width = Math.max(1, (to + 1 - from) / count);
-  const starts = [from];
-  for (let k = 1; k < count; k++) starts.push(Math.floor((from + k * width) / 900_000) * 900_000);
-  const bucketOf = (t: number) => {
-    if (width < 30 * 60_000) return Math.min(count - 1, Math.floor((t - from) / width));
-    let k = 0;
-    while (k + 1 < count && starts[k + 1]! <= t) k++;
-    return k;
-  };
-  const buckets = new Map<number, Reading[]>();
-  for (const r of inWindow) {
-    const k = bucketOf(r.tsMs);
-    buckets.set(k, [...(buckets.get(k) ?? []), r]);
-  }
-  return [...buckets.keys()].sort((a, b) => a - b).flatMap((k) => extremesOf(buckets.get(k)!));
-}
-
 /** The stored readings of a sensor and its rollup, read from the database file beside the server. */
 function fromFile(sensor: string) {
   const db = new Database(plinth.dbPath, { readonly: true, fileMustExist: true });
@@ -112,56 +63,28 @@ function fromFile(sensor: string) {
       .raw()
       .all(sensor)
       .map(([tsMs, tempC, rhPct]): Reading => ({ tsMs, tempC, rhPct }));
-    const mark = db
-      .prepare("select rolled_ms from readings_rollup_marks where sensor_id = ?")
-      .pluck()
-      .get(sensor) as number | undefined;
-    const rows = db
-      .prepare(
-        `select bucket_ms, readings, lo_temp_ts, lo_temp_c, hi_temp_ts, hi_temp_c, lo_rh_ts,
-           lo_rh_pct, hi_rh_ts, hi_rh_pct from readings_rollup where sensor_id = ? and bucket_ms < ?
-         order by bucket_ms`,
+    const marks = db
+      .prepare<[string], { rolled_ms: number; hours_rolled_ms: number | null }>(
+        "select rolled_ms, hours_rolled_ms from readings_rollup_marks where sensor_id = ?",
       )
-      .raw()
-      .all(sensor, mark ?? 0);
-    return { readings, mark: mark ?? null, rows };
+      .get(sensor);
+    const rowsOf = (table: string, beforeMs: number) =>
+      db
+        .prepare(
+          `select ${ROLLUP_COLUMNS} from ${table} where sensor_id = ? and bucket_ms < ? order by bucket_ms`,
+        )
+        .raw()
+        .all(sensor, beforeMs);
+    return {
+      readings,
+      mark: marks?.rolled_ms ?? null,
+      hoursMark: marks?.hours_rolled_ms ?? null,
+      rows: rowsOf("readings_rollup", marks?.rolled_ms ?? 0),
+      hourRows: rowsOf("readings_rollup_hours", marks?.hours_rolled_ms ?? 0),
+    };
   } finally {
     db.close();
   }
-}
-
-/** The rollup rows a correct roll-up of `readings` holds before `markMs`. */
-function bruteRollup(readings: readonly Reading[], markMs: number) {
-  const groups = new Map<number, Reading[]>();
-  for (const r of readings)
-    if (r.tsMs < markMs) {
-      const b = Math.floor(r.tsMs / QUARTER) * QUARTER;
-      groups.set(b, [...(groups.get(b) ?? []), r]);
-    }
-  return [...groups.keys()]
-    .sort((a, b) => a - b)
-    .map((b) => {
-      const g = groups.get(b)!;
-      const rh = g.filter((r) => r.rhPct !== null);
-      const first = (xs: Reading[], cmp: (a: Reading, b: Reading) => number) =>
-        [...xs].sort((a, c) => cmp(a, c) || a.tsMs - c.tsMs)[0];
-      const lo = first(g, (a, c) => a.tempC - c.tempC)!;
-      const hi = first(g, (a, c) => c.tempC - a.tempC)!;
-      const loRh = first(rh, (a, c) => a.rhPct! - c.rhPct!);
-      const hiRh = first(rh, (a, c) => c.rhPct! - a.rhPct!);
-      return [
-        b,
-        g.length,
-        lo.tsMs,
-        lo.tempC,
-        hi.tsMs,
-        hi.tempC,
-        loRh?.tsMs ?? null,
-        loRh?.rhPct ?? null,
-        hiRh?.tsMs ?? null,
-        hiRh?.rhPct ?? null,
-      ];
-    });
 }
 
 async function until(what: string, ok: () => boolean, timeoutMs = 30_000) {
@@ -193,7 +116,7 @@ describe("the chart window from the readings rollup, across restarts", () => {
     let file = fromFile(sensor);
     expect(file.mark).not.toBeNull();
     expect(file.mark!).toBeGreaterThan(fromMs + 40 * HOUR);
-    expect(file.rows).toEqual(bruteRollup(file.readings, file.mark!));
+    expect(file.rows).toEqual(bruteRollupRows(file.readings, file.mark!));
 
     await restart("stop");
     expect(await chart(sensor, fromMs, toMs, 200)).toEqual(first);
@@ -216,19 +139,24 @@ describe("the chart window from the readings rollup, across restarts", () => {
     expect(afterKill).toEqual(bruteThin(all, fromMs, toMs, 50));
     file = fromFile(sensor);
     expect(file.readings).toHaveLength(all.length);
-    expect(file.rows).toEqual(bruteRollup(file.readings, file.mark!));
+    expect(file.rows).toEqual(bruteRollupRows(file.readings, file.mark!));
   });
 
   it("rolls the demo plant's seeded history up at start and charts it as the raw readings would", async () => {
     const sensor = "CB-07";
-    await until("the demo sensor's roll-up", () => fromFile(sensor).mark !== null);
+    await until("the demo sensor's roll-up, both spans", () => {
+      const marks = fromFile(sensor);
+      return marks.mark !== null && marks.hoursMark === Math.floor(marks.mark / HOUR) * HOUR;
+    });
     const file = fromFile(sensor);
     expect(file.readings.length).toBeGreaterThan(1_000);
     expect(file.rows.length).toBeGreaterThan(100);
-    expect(file.rows).toEqual(bruteRollup(file.readings, file.mark!));
+    expect(file.rows).toEqual(bruteRollupRows(file.readings, file.mark!));
+    expect(file.hourRows.length).toBeGreaterThan(25);
+    expect(file.hourRows).toEqual(bruteRollupRows(file.readings, file.hoursMark!, HOUR));
     const fromMs = file.readings[0]!.tsMs;
     const toMs = file.readings.at(-1)!.tsMs;
-    // 60 points: 15 chart buckets of over nine hours each.
+    // 60 points: 15 chart buckets of over nine hours each, on the hours.
     expect(await chart(sensor, fromMs, toMs, 60)).toEqual(
       bruteThin(file.readings, fromMs, toMs, 15),
     );

@@ -4,8 +4,9 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { bruteRollupRows, bruteThin, ROLLUP_COLUMNS, type Reading } from "./helpers/thinning";
 
-// The readings rollup (migration 0005, queries/rollup.ts) on real SQLite files migrated by the
+// The readings rollup (migrations 0005 and 0006, queries/rollup.ts) on real SQLite files migrated by the
 // real migrations: a long chart window thinned from the rollup must keep exactly the readings
 // a thinning over the raw readings keeps, whatever arrived late, and however it arrived.
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), "plinth-rollup-"));
@@ -23,12 +24,6 @@ const DAY = 86_400_000;
 const QUARTER = 900_000;
 const T0 = Date.UTC(2026, 0, 5);
 
-interface Reading {
-  tsMs: number;
-  tempC: number;
-  rhPct: number | null;
-}
-
 beforeAll(() => client.migrateDatabase());
 afterAll(() => {
   client.closeDatabase();
@@ -41,91 +36,15 @@ const store = (sensorId: string, rows: readonly Reading[]) =>
     "http",
   );
 
-/** Written apart from the code under test: a group's extremes by sorting, earliest on a tie. */
-function extremesOf(group: readonly Reading[]): Reading[] {
-  const withRh = group.filter((r) => r.rhPct !== null);
-  const first = <T>(xs: T[], cmp: (a: T, b: T) => number) => [...xs].sort(cmp)[0];
-  const picks = [
-    first([...group], (a, b) => a.tempC - b.tempC || a.tsMs - b.tsMs),
-    first([...group], (a, b) => b.tempC - a.tempC || a.tsMs - b.tsMs),
-    first(withRh, (a, b) => a.rhPct! - b.rhPct! || a.tsMs - b.tsMs),
-    first(withRh, (a, b) => b.rhPct! - a.rhPct! || a.tsMs - b.tsMs),
-  ].filter((r): r is Reading => r !== undefined);
-  return [...new Map(picks.map((r) => [r.tsMs, r])).values()].sort((a, b) => a.tsMs - b.tsMs);
-}
-
-/**
- * Brute-force thinning of what is stored, written apart from the code under test: the window
- * [from, to] in `count` buckets of thinSeries's width (to + 1 − from) / count; when that is at
- * least half an hour, bucket k >= 1 starts at the quarter hour at or before from + k·width,
- * else thinSeries's equal cut (its arithmetic). Each bucket's extremes; a window with no more
- * than 4 × count readings whole.
- */
-function bruteThin(stored: readonly Reading[], from: number, to: number, count: number) {
-  const inWindow = stored
-    .filter((r) => r.tsMs >= from && r.tsMs <= to)
-    .sort((a, b) => a.tsMs - b.tsMs);
-  if (inWindow.length <= 4 * count) return inWindow;
-  const width = Math.max(1, (to + 1 - from) / count);
-  const starts = [from];
-  for (let k = 1; k < count; k++) starts.push(Math.floor((from + k * width) / 900_000) * 900_000);
-  const bucketOf = (t: number) => {
-    if (width < 30 * 60_000) return Math.min(count - 1, Math.floor((t - from) / width));
-    let k = 0;
-    while (k + 1 < count && starts[k + 1]! <= t) k++;
-    return k;
-  };
-  const buckets = new Map<number, Reading[]>();
-  for (const r of inWindow) {
-    const k = bucketOf(r.tsMs);
-    buckets.set(k, [...(buckets.get(k) ?? []), r]);
-  }
-  return [...buckets.keys()].sort((a, b) => a - b).flatMap((k) => extremesOf(buckets.get(k)!));
-}
-
-/** The rollup rows a correct roll-up of `stored` holds before `markMs`, as the table's columns. */
-function bruteRollupRows(stored: readonly Reading[], markMs: number) {
-  const groups = new Map<number, Reading[]>();
-  for (const r of stored) {
-    if (r.tsMs >= markMs) continue;
-    const b = Math.floor(r.tsMs / QUARTER) * QUARTER;
-    groups.set(b, [...(groups.get(b) ?? []), r]);
-  }
-  return [...groups.keys()]
-    .sort((a, b) => a - b)
-    .map((b) => {
-      const g = groups.get(b)!;
-      const by = (cmp: (x: Reading, y: Reading) => number) => [...g].sort(cmp)[0]!;
-      const lo = by((x, y) => x.tempC - y.tempC || x.tsMs - y.tsMs);
-      const hi = by((x, y) => y.tempC - x.tempC || x.tsMs - y.tsMs);
-      const rh = g.filter((r) => r.rhPct !== null);
-      const loRh = [...rh].sort((x, y) => x.rhPct! - y.rhPct! || x.tsMs - y.tsMs)[0];
-      const hiRh = [...rh].sort((x, y) => y.rhPct! - x.rhPct! || x.tsMs - y.tsMs)[0];
-      return [
-        b,
-        g.length,
-        lo.tsMs,
-        lo.tempC,
-        lo.rhPct,
-        hi.tsMs,
-        hi.tempC,
-        hi.rhPct,
-        loRh?.tsMs ?? null,
-        loRh?.tempC ?? null,
-        loRh?.rhPct ?? null,
-        hiRh?.tsMs ?? null,
-        hiRh?.tempC ?? null,
-        hiRh?.rhPct ?? null,
-      ];
-    });
-}
-
-function rollupRowsOf(sqlite: Database.Database, sensorId: string, beforeMs: number) {
+function rollupRowsOf(
+  sqlite: Database.Database,
+  sensorId: string,
+  beforeMs: number,
+  table = "readings_rollup",
+) {
   return sqlite
     .prepare(
-      `select bucket_ms, readings, lo_temp_ts, lo_temp_c, lo_temp_rh_pct, hi_temp_ts, hi_temp_c,
-         hi_temp_rh_pct, lo_rh_ts, lo_rh_temp_c, lo_rh_pct, hi_rh_ts, hi_rh_temp_c, hi_rh_pct
-       from readings_rollup where sensor_id = ? and bucket_ms < ? order by bucket_ms`,
+      `select ${ROLLUP_COLUMNS} from ${table} where sensor_id = ? and bucket_ms < ? order by bucket_ms`,
     )
     .raw()
     .all(sensorId, beforeMs);
@@ -211,12 +130,19 @@ describe("the readings rollup", () => {
           expect(got).toEqual(bruteThin(stored, from, to, count));
           // And what the chart route then does with it changes nothing.
           expect(thinSeries(got, 4 * count, from, to)).toEqual(got);
-          // Whatever the rollup holds before its mark matches the readings.
-          const mark = rollup.rolledThrough(sensorId);
-          if (mark !== null)
-            expect(rollupRowsOf(client.getSqlite(), sensorId, mark)).toEqual(
-              bruteRollupRows(stored, mark),
+          // Whatever the rollup holds before its marks matches the readings, either span.
+          const marks = rollup.rollupMarks(sensorId);
+          if (marks.quarterMs !== null)
+            expect(rollupRowsOf(client.getSqlite(), sensorId, marks.quarterMs)).toEqual(
+              bruteRollupRows(stored, marks.quarterMs),
             );
+          if (marks.hourMs !== null) {
+            expect(marks.hourMs % HOUR).toBe(0);
+            expect(marks.hourMs).toBeLessThanOrEqual(marks.quarterMs!);
+            expect(
+              rollupRowsOf(client.getSqlite(), sensorId, marks.hourMs, "readings_rollup_hours"),
+            ).toEqual(bruteRollupRows(stored, marks.hourMs, HOUR));
+          }
         },
       ),
       { numRuns: 80 },
@@ -237,9 +163,15 @@ describe("the readings rollup", () => {
     const lastBucket = Math.floor((T0 + 2 * DAY - MIN) / QUARTER) * QUARTER;
     expect(rollup.rolledThrough(sensorId)).toBe(lastBucket);
 
-    const spikeMs = T0 + 30 * HOUR + 7 * MIN + 30_000; // between two minute readings
+    expect(rollup.rollupMarks(sensorId).hourMs).toBe(T0 + 47 * HOUR);
+
+    const spikeMs = T0 + 30 * HOUR + 22 * MIN + 30_000; // between two minute readings
     store(sensorId, [{ tsMs: spikeMs, tempC: 61.5, rhPct: 40 }]);
-    expect(rollup.rolledThrough(sensorId)).toBe(T0 + 30 * HOUR);
+    // Both spans are complete only before the spike's bucket now.
+    expect(rollup.rollupMarks(sensorId)).toEqual({
+      quarterMs: T0 + 30 * HOUR + QUARTER,
+      hourMs: T0 + 30 * HOUR,
+    });
 
     const window = () => thinnedWindow(sensorId, T0, T0 + 2 * DAY - 1, 50, nowMs);
     const spike = { tsMs: spikeMs, tempC: 61.5, rhPct: 40 };
@@ -248,6 +180,17 @@ describe("the readings rollup", () => {
     expect(rollup.rolledThrough(sensorId)).toBe(lastBucket);
     expect(window()).toContainEqual(spike);
     expect(window()).toEqual(bruteThin(firstStands(days, [spike]), T0, T0 + 2 * DAY - 1, 50));
+    // The hour holding it is rolled up again, spike and all; a week's chart (hours) shows it.
+    expect(rollup.rollupMarks(sensorId).hourMs).toBe(T0 + 47 * HOUR);
+    expect(
+      rollupRowsOf(client.getSqlite(), sensorId, T0 + 47 * HOUR, "readings_rollup_hours"),
+    ).toEqual(bruteRollupRows(firstStands(days, [spike]), T0 + 47 * HOUR, HOUR));
+    const week = thinnedWindow(sensorId, T0 - 5 * DAY, T0 + 2 * DAY - 1, 50, nowMs);
+    expect(week).toContainEqual(spike);
+    expect(week).toEqual(bruteThin(firstStands(days, [spike]), T0 - 5 * DAY, T0 + 2 * DAY - 1, 50));
+    // The roll-up keeps the recent chart rows in SQLite's cache by reading them: the hours
+    // (47) and quarter hours (191) rolled up so far, and the readings of the last two hours.
+    expect(rollup.warmSensor(sensorId)).toBe(47 + 191 + 121);
   });
 
   it("takes a logger file's backfill into rolled-up buckets", () => {
@@ -324,7 +267,7 @@ describe("the readings rollup", () => {
   });
 });
 
-describe("migration 0005", () => {
+describe("migrations 0005 and 0006", () => {
   it("rolls up the readings a plant already holds, as the roll-up at run time does", () => {
     // The migrations up to 0004 in a folder of their own, then the readings of a plant
     // stored before 0005 existed (straight into the table), then every migration.
@@ -387,7 +330,16 @@ describe("migration 0005", () => {
         const mark = Math.floor(newest / QUARTER) * QUARTER;
         expect(rollup.rolledThrough(id, sqlite)).toBe(mark);
         expect(rollupRowsOf(sqlite, id, mark + QUARTER)).toEqual(bruteRollupRows(rows, mark));
-        // The roll-up at run time finds nothing left to do.
+        // Migration 0006 leaves the hours to the roll-up at run time, which then finds
+        // nothing else to do.
+        expect(rollup.rollupMarks(id, sqlite).hourMs).toBeNull();
+        rollup.rollUpSensor(id, Date.now(), sqlite);
+        expect(rollup.rolledThrough(id, sqlite)).toBe(mark);
+        const hourMark = Math.floor(mark / HOUR) * HOUR;
+        expect(rollup.rollupMarks(id, sqlite).hourMs).toBe(hourMark);
+        expect(rollupRowsOf(sqlite, id, hourMark + HOUR, "readings_rollup_hours")).toEqual(
+          bruteRollupRows(rows, hourMark, HOUR),
+        );
         expect(rollup.rollUpBehindMs(id, Date.now(), sqlite)).toBe(0);
       }
     } finally {

@@ -168,6 +168,15 @@ export async function migrateChartDb(spec: ChartDb): Promise<void> {
   const t0 = Date.now();
   await migrate(spec.file);
   say(`  migrated in ${((Date.now() - t0) / 1000).toFixed(0)} s`);
+  // A later migration may leave rolling up to the server (the hourly rollup of 0006 does):
+  // done here once, as a plant's server would have done it long since.
+  const sqlite = new Database(spec.file, { fileMustExist: true });
+  try {
+    await rollUp(sqlite, spec);
+    sqlite.pragma("wal_checkpoint(TRUNCATE)");
+  } finally {
+    sqlite.close();
+  }
 }
 
 function removeWithSidecars(file: string): void {

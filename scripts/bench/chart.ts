@@ -18,7 +18,7 @@ import { call } from "../../tests/helpers/server";
 import { buildChartDb, chartDbReady, chartDbSpec, migrateChartDb, type ChartDb } from "./chart-db";
 import { WINDOW_SQL } from "./db";
 import type { Sizes } from "./options";
-import { root, signInManager, startPlinth } from "./plinth";
+import { root, signInManager, startPlinth, waitSettled } from "./plinth";
 import { ownCpuSeconds } from "./proc";
 import { say } from "./progress";
 import { formatFigure, type BenchResult } from "./result";
@@ -67,6 +67,10 @@ async function httpQueries(
   warmup: number,
 ): Promise<QueryRun & { peakRssMib: number; rssAtStartMib: number }> {
   const plinth = await startPlinth(spec.file);
+  const settledMs = await waitSettled(plinth);
+  say(
+    `  Plinth settled ${(settledMs / 1000).toFixed(1)} s after answering (its first roll-up pass)`,
+  );
   const run: QueryRun = { ms: [], points: [], cpuMsPerQuery: Number.NaN };
   let peakRssMib = Number.NaN;
   try {

@@ -189,6 +189,26 @@ export async function startPlinth(
   };
 }
 
+/**
+ * Waits until Plinth's start-up work is done (its first roll-up pass, which also loads each
+ * sensor's recent chart rows into SQLite's cache): until it has used under 20 ms of CPU in a
+ * second, at most `maxMs`. Returns the ms waited.
+ */
+export async function waitSettled(plinth: BenchPlinth, maxMs = 60_000): Promise<number> {
+  const t0 = Date.now();
+  let last = plinth.cpuSeconds();
+  let quietSince = Date.now();
+  while (Date.now() - t0 < maxMs) {
+    await new Promise((r) => setTimeout(r, 200));
+    const now = plinth.cpuSeconds();
+    if (Number.isNaN(now)) return Date.now() - t0;
+    if (now - last > 0.02 * 0.2) quietSince = Date.now();
+    last = now;
+    if (Date.now() - quietSince >= 1_000) return Date.now() - t0;
+  }
+  return Date.now() - t0;
+}
+
 /** Signs the bench manager in; returns the session cookie ("name=value"). */
 export function signInManager(
   plinth: BenchPlinth,

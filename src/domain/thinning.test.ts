@@ -9,6 +9,7 @@ import {
   MIN_GRID_CHART_BUCKET_MS,
   planWindow,
   ROLLUP_BUCKET_MS,
+  ROLLUP_HOUR_MS,
   rollupBucketCeil,
   rollupBucketStart,
 } from "./thinning";
@@ -30,15 +31,17 @@ function bruteExtremes(points: readonly SeriesPoint[]): SeriesPoint[] {
 
 /**
  * The chart buckets' rule, written apart from the code under test: thinSeries's width; when
- * that is at least half an hour, bucket k (k >= 1) starts at the quarter hour at or before
- * from + k·width; else thinSeries's equal cut. Returns the bucket of each time.
+ * that is at least two hours, bucket k (k >= 1) starts at the hour at or before from + k·width;
+ * when at least half an hour, at the quarter hour at or before it; else thinSeries's equal
+ * cut. Returns the bucket of each time.
  */
 function bruteBucketOf(from: number, to: number, count: number): (tsMs: number) => number {
   const width = Math.max(1, (to + 1 - from) / count);
   if (width < 30 * MIN)
     return (t) => Math.min(count - 1, Math.max(0, Math.floor((t - from) / width)));
+  const step = width >= 2 * HOUR ? HOUR : 15 * MIN;
   const starts = [from];
-  for (let k = 1; k < count; k++) starts.push(Math.floor((from + k * width) / 900_000) * 900_000);
+  for (let k = 1; k < count; k++) starts.push(Math.floor((from + k * width) / step) * step);
   return (t) => {
     let k = 0;
     while (k + 1 < count && starts[k + 1]! <= t) k++;
@@ -62,11 +65,11 @@ function bruteThin(points: readonly SeriesPoint[], from: number, to: number, cou
     .flatMap((k) => bruteExtremes(byBucket.get(k)!).sort((x, y) => x.tsMs - y.tsMs));
 }
 
-/** What a correct roll-up holds for these readings: one bucket per quarter hour with readings. */
-function bruteRollup(points: readonly SeriesPoint[]) {
+/** What a correct roll-up holds for these readings: one bucket per span (a quarter hour or an hour) with readings. */
+function bruteRollup(points: readonly SeriesPoint[], spanMs = ROLLUP_BUCKET_MS) {
   const groups = new Map<number, SeriesPoint[]>();
   for (const p of points) {
-    const b = Math.floor(p.tsMs / ROLLUP_BUCKET_MS) * ROLLUP_BUCKET_MS;
+    const b = Math.floor(p.tsMs / spanMs) * spanMs;
     const group = groups.get(b);
     if (group) group.push(p);
     else groups.set(b, [p]);
@@ -137,23 +140,35 @@ describe("cutting a window into chart buckets", () => {
     expect(chartBuckets(0, 9_999, 3).widthMs).toBeCloseTo(3_333.333, 3);
   });
 
-  it("puts buckets of half an hour or more on the quarter hours, within a quarter hour of the equal cut", () => {
-    const from = Date.UTC(2026, 0, 1, 0, 5, 17);
-    const to = Date.UTC(2026, 0, 31, 0, 7);
-    const layout = chartBuckets(from, to, 250); // 172.8 minutes wide
-    const starts = layout.gridStartsMs!;
-    expect(starts).toHaveLength(249);
-    starts.forEach((start, i) => {
-      const equalEdge = from + (i + 1) * layout.widthMs;
-      expect(start % ROLLUP_BUCKET_MS).toBe(0);
-      expect(start).toBeLessThanOrEqual(equalEdge);
-      expect(start).toBeGreaterThan(equalEdge - ROLLUP_BUCKET_MS);
-      expect(chartBucketOf(layout, start)).toBe(i + 1);
-      expect(chartBucketOf(layout, start - 1)).toBe(i);
-    });
-    expect(chartBucketOf(layout, from)).toBe(0);
-    expect(chartBucketOf(layout, to)).toBe(249);
+  it.each([
+    ["a week", Date.UTC(2026, 0, 8, 0, 7), ROLLUP_BUCKET_MS], // 40.3 minutes wide
+    ["a month", Date.UTC(2026, 0, 31, 0, 7), ROLLUP_HOUR_MS], // 172.8 minutes wide
+  ])(
+    "puts the buckets of %s on the grid they are wide enough for, within one step of the equal cut",
+    (_, to, step) => {
+      const from = Date.UTC(2026, 0, 1, 0, 5, 17);
+      const layout = chartBuckets(from, to, 250);
+      expect(layout.gridMs).toBe(step);
+      const starts = layout.gridStartsMs!;
+      expect(starts).toHaveLength(249);
+      starts.forEach((start, i) => {
+        const equalEdge = from + (i + 1) * layout.widthMs;
+        expect(start % step).toBe(0);
+        expect(start).toBeLessThanOrEqual(equalEdge);
+        expect(start).toBeGreaterThan(equalEdge - step);
+        expect(chartBucketOf(layout, start)).toBe(i + 1);
+        expect(chartBucketOf(layout, start - 1)).toBe(i);
+      });
+      expect(chartBucketOf(layout, from)).toBe(0);
+      expect(chartBucketOf(layout, to)).toBe(249);
+    },
+  );
+
+  it("changes grid at half an hour and at two hours wide", () => {
     expect(chartBuckets(0, 100 * MIN_GRID_CHART_BUCKET_MS - 2, 100).gridStartsMs).toBeNull();
+    expect(chartBuckets(0, 100 * MIN_GRID_CHART_BUCKET_MS - 1, 100).gridMs).toBe(ROLLUP_BUCKET_MS);
+    expect(chartBuckets(0, 100 * 2 * HOUR - 2, 100).gridMs).toBe(ROLLUP_BUCKET_MS);
+    expect(chartBuckets(0, 100 * 2 * HOUR - 1, 100).gridMs).toBe(ROLLUP_HOUR_MS);
   });
 
   it("aligns rollup buckets to the quarter hour", () => {
@@ -170,28 +185,42 @@ describe("planning where a window is read from", () => {
   const from = Date.UTC(2026, 0, 1, 0, 5);
   const to = Date.UTC(2026, 0, 31, 0, 7);
 
+  const Q = ROLLUP_BUCKET_MS;
+  const H = ROLLUP_HOUR_MS;
+
   it("reads everything raw before anything is rolled up", () => {
     const plan = planWindow(from, to, 250, null);
     expect(plan.raw).toEqual([{ fromMs: from, toMs: to + 1 }]);
-    expect(plan.rollup.toMs).toBe(plan.rollup.fromMs);
+    expect(plan.rollup).toEqual([]);
   });
 
   it("reads whole quarter hours from the rollup and the ragged edges raw", () => {
     const plan = planWindow(from, to, 250, Date.UTC(2027, 0, 1));
-    expect(plan.rollup).toEqual({
-      fromMs: Date.UTC(2026, 0, 1, 0, 15),
-      toMs: Date.UTC(2026, 0, 31, 0, 0),
-    });
+    expect(plan.rollup).toEqual([
+      { spanMs: Q, fromMs: Date.UTC(2026, 0, 1, 0, 15), toMs: Date.UTC(2026, 0, 31, 0, 0) },
+    ]);
     expect(plan.raw).toEqual([
       { fromMs: from, toMs: Date.UTC(2026, 0, 1, 0, 15) },
       { fromMs: Date.UTC(2026, 0, 31, 0, 0), toMs: to + 1 },
     ]);
   });
 
+  it("reads whole hours from the hourly rollup, quarter hours up to them and past its mark", () => {
+    const plan = planWindow(from, to, 250, Date.UTC(2027, 0, 1), Date.UTC(2026, 0, 30, 22));
+    expect(plan.rollup).toEqual([
+      { spanMs: Q, fromMs: Date.UTC(2026, 0, 1, 0, 15), toMs: Date.UTC(2026, 0, 1, 1) },
+      { spanMs: H, fromMs: Date.UTC(2026, 0, 1, 1), toMs: Date.UTC(2026, 0, 30, 22) },
+      { spanMs: Q, fromMs: Date.UTC(2026, 0, 30, 22), toMs: Date.UTC(2026, 0, 31, 0, 0) },
+    ]);
+    // A week's chart buckets lie on the quarter hours: the hours are not used.
+    const week = planWindow(from, from + 7 * DAY, 250, Date.UTC(2027, 0, 1), Date.UTC(2027, 0, 1));
+    expect(week.rollup.map((r) => r.spanMs)).toEqual([Q]);
+  });
+
   it("reads what is not rolled up yet raw", () => {
     const mark = Date.UTC(2026, 0, 20, 6, 45);
-    const plan = planWindow(from, to, 250, mark);
-    expect(plan.rollup.toMs).toBe(mark);
+    const plan = planWindow(from, to, 250, mark, Date.UTC(2026, 0, 25));
+    expect(plan.rollup.at(-1)).toEqual({ spanMs: Q, fromMs: Date.UTC(2026, 0, 20, 6), toMs: mark });
     expect(plan.raw.at(-1)).toEqual({ fromMs: mark, toMs: to + 1 });
   });
 
@@ -203,6 +232,8 @@ describe("planning where a window is read from", () => {
 });
 
 describe("folding extremes from rollup buckets and raw readings", () => {
+  const Q = ROLLUP_BUCKET_MS;
+
   it("keeps a one-minute spike inside a rolled-up bucket", () => {
     const points = Array.from({ length: 24 * 60 }, (_, i) => ({
       tsMs: i * MIN,
@@ -212,7 +243,7 @@ describe("folding extremes from rollup buckets and raw readings", () => {
     const layout = chartBuckets(0, 24 * HOUR - 1, 6);
     const fold = foldExtremes(layout);
     for (const b of bruteRollup(points))
-      expect(fold.addRollup(b.bucketMs, b.readings, b.extremes)).toBe(true);
+      expect(fold.addRollup(b.bucketMs, Q, b.readings, b.extremes)).toBe(true);
     const out = fold.points();
     expect(fold.readings()).toBe(points.length);
     expect(out.find((p) => p.tempC === 48)?.tsMs).toBe(700 * MIN);
@@ -234,7 +265,7 @@ describe("folding extremes from rollup buckets and raw readings", () => {
     const layout = chartBuckets(0, 24 * HOUR - 1, 7); // 3 h 25 min 42.857 s wide
     const fold = foldExtremes(layout);
     for (const b of bruteRollup(points))
-      expect(fold.addRollup(b.bucketMs, b.readings, b.extremes)).toBe(true);
+      expect(fold.addRollup(b.bucketMs, Q, b.readings, b.extremes)).toBe(true);
     const out = fold.points();
     expect(out).toEqual(bruteThin(points, 0, 24 * HOUR - 1, 7));
     for (const start of layout.gridStartsMs!) {
@@ -248,8 +279,8 @@ describe("folding extremes from rollup buckets and raw readings", () => {
     const layout = chartBuckets(0, HOUR - 1, 3); // 20 minutes: thinSeries's equal cut
     const fold = foldExtremes(layout);
     const [first, second] = bruteRollup(points); // [0, 15 min) and [15, 30 min)
-    expect(fold.addRollup(first!.bucketMs, first!.readings, first!.extremes)).toBe(true);
-    expect(fold.addRollup(second!.bucketMs, second!.readings, second!.extremes)).toBe(false);
+    expect(fold.addRollup(first!.bucketMs, Q, first!.readings, first!.extremes)).toBe(true);
+    expect(fold.addRollup(second!.bucketMs, Q, second!.readings, second!.extremes)).toBe(false);
     expect(fold.readings()).toBe(15);
   });
 
@@ -276,7 +307,7 @@ describe("folding extremes from rollup buckets and raw readings", () => {
     );
   });
 
-  it("picks exactly what a brute force over the raw window picks, from rollup buckets, raw edges and the raw tail", () => {
+  it("picks exactly what a brute force over the raw window picks, from hourly and quarter-hour buckets, raw edges and the raw tail", () => {
     fc.assert(
       fc.property(
         readingsArb(3 * DAY, 900),
@@ -284,23 +315,32 @@ describe("folding extremes from rollup buckets and raw readings", () => {
         fc.integer({ min: 0, max: 3 * DAY }),
         fc.integer({ min: 1, max: 120 }),
         fc.option(fc.integer({ min: 0, max: 3 * DAY })),
+        fc.option(fc.integer({ min: 0, max: 3 * DAY })),
         fc.integer({ min: 0, max: 1000 }),
-        (points, a, b, count, markAt, seed) => {
+        (points, a, b, count, markAt, hourMarkAt, seed) => {
           const from = Math.min(a, b);
           const to = Math.max(a, b);
           const mark = markAt === null ? null : rollupBucketStart(markAt);
-          const plan = planWindow(from, to, count, mark);
+          // The hours are rolled up from complete quarter hours only: never past that mark.
+          const hourMark =
+            mark === null || hourMarkAt === null
+              ? null
+              : Math.floor(Math.min(hourMarkAt, mark) / HOUR) * HOUR;
+          const plan = planWindow(from, to, count, mark, hourMark);
           const fold = foldExtremes(plan.layout);
           const parts: (() => void)[] = [];
           for (const range of plan.raw)
             for (const p of points)
               if (p.tsMs >= range.fromMs && p.tsMs < range.toMs)
                 parts.push(() => fold.add(p.tsMs, p.tempC, p.rhPct));
-          for (const r of bruteRollup(points))
-            if (r.bucketMs >= plan.rollup.fromMs && r.bucketMs < plan.rollup.toMs)
-              parts.push(() =>
-                expect(fold.addRollup(r.bucketMs, r.readings, r.extremes)).toBe(true),
-              );
+          for (const range of plan.rollup)
+            for (const r of bruteRollup(points, range.spanMs))
+              if (r.bucketMs >= range.fromMs && r.bucketMs < range.toMs)
+                parts.push(() =>
+                  expect(fold.addRollup(r.bucketMs, range.spanMs, r.readings, r.extremes)).toBe(
+                    true,
+                  ),
+                );
           // In any order.
           const order = parts
             .map((_, i) => i)

@@ -9,6 +9,7 @@ const envSchema = z.object({
   HOST: z.string().default("0.0.0.0"),
   PORT: z.coerce.number().int().min(0).max(65535).default(4321),
   DATABASE_PATH: z.string().default("data/plinth.db"),
+  SQLITE_CACHE_MIB: z.coerce.number().int().min(2).max(16_384).default(64),
   MQTT_PORT: z.coerce.number().int().min(0).max(65535).default(1883),
   MQTT_HOST: z.string().default("127.0.0.1"),
   MQTT_URL: z.string().optional(),

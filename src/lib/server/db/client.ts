@@ -20,8 +20,15 @@ interface DbHolder {
 const KEY = Symbol.for("plinth.db");
 const holder = globalThis as unknown as { [KEY]?: DbHolder };
 
-/** Opens the database with Plinth's pragmas: WAL, foreign keys on, a busy timeout. */
-export function openDatabase(filePath: string): DbHolder {
+/**
+ * Opens the database with Plinth's pragmas: WAL, foreign keys on, a busy timeout, and a page
+ * cache of SQLITE_CACHE_MIB (the roll-up keeps each sensor's recent chart rows in it, so a
+ * chart does not wait on the disk; rollup/service.ts).
+ */
+export function openDatabase(
+  filePath: string,
+  cacheMib: number = env().SQLITE_CACHE_MIB,
+): DbHolder {
   if (filePath !== ":memory:")
     fs.mkdirSync(path.dirname(path.resolve(filePath)), { recursive: true });
   const sqlite = new Database(filePath);
@@ -30,6 +37,7 @@ export function openDatabase(filePath: string): DbHolder {
   sqlite.pragma("foreign_keys = ON");
   sqlite.pragma("busy_timeout = 5000");
   sqlite.pragma("temp_store = MEMORY");
+  sqlite.pragma(`cache_size = ${-Math.round(cacheMib * 1024)}`);
   const db = drizzle({ client: sqlite, schema }) as Db;
   return { db, sqlite, path: filePath };
 }

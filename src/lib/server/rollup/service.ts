@@ -4,11 +4,13 @@
  * per transaction with a turn of the event loop between steps, so ingest and pages never wait
  * long behind it. Started by services.ts; it stops by itself once the database it started on
  * is closed (stopServices), and never opens another. A chart query also rolls its own sensor
- * up when far behind (queries/sensors.ts), so this pass only keeps that rare.
+ * up when far behind (queries/sensors.ts), so this pass only keeps that rare. Each pass also
+ * reads every sensor's recent chart rows (warmSensor), which keeps them in SQLite's page cache
+ * (SQLITE_CACHE_MIB): a chart then does not wait on the disk, whatever the OS has evicted.
  */
 import type Database from "better-sqlite3";
 import { getSqlite } from "../db/client";
-import { listSensorIds, rollUpBehindMs, rollUpStep } from "../db/queries/rollup";
+import { listSensorIds, rollUpBehindMs, rollUpStep, warmSensor } from "../db/queries/rollup";
 import { log } from "../log";
 
 /** How often the pass runs. A 15-minute bucket closes every 15 minutes. */
@@ -32,6 +34,7 @@ async function pass(state: RollupState): Promise<number> {
   if (state.running || !live(state)) return 0;
   state.running = true;
   let written = 0;
+  let warmed = 0;
   const started = Date.now();
   try {
     for (const sensorId of listSensorIds(state.db)) {
@@ -42,9 +45,10 @@ async function pass(state: RollupState): Promise<number> {
         await nextTurn();
       }
       if (!live(state)) break;
+      warmed += warmSensor(sensorId, state.db);
+      await nextTurn();
     }
-    if (written > 0)
-      log.debug("readings rolled up", { buckets: written, ms: Date.now() - started });
+    log.debug("readings rolled up", { buckets: written, warmed, ms: Date.now() - started });
   } catch (err) {
     // A failed step rolled back whole; the marks still say what is complete. Next pass retries.
     if (live(state)) log.error("readings roll-up failed; the next pass retries", { err });

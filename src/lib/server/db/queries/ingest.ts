@@ -1,6 +1,6 @@
 import type { CleanReading } from "@/domain/readings";
 import { applyOffsets } from "@/domain/readings";
-import { rollupBucketStart } from "@/domain/thinning";
+import { bucketStart, ROLLUP_HOUR_MS, rollupBucketStart } from "@/domain/thinning";
 import { getSqlite } from "../client";
 
 export interface StoreResult {
@@ -46,9 +46,11 @@ function prepare() {
          battery_pct = coalesce(?, battery_pct), last_gateway_id = coalesce(?, last_gateway_id)
        where id = ? and (last_seen_at is null or last_seen_at < ?)`,
     ),
-    // A reading stored into a rolled-up bucket: the rollup is complete only before it now.
-    unroll: db.prepare<[number, string, number]>(
-      "update readings_rollup_marks set rolled_ms = ? where sensor_id = ? and rolled_ms > ?",
+    // A reading stored into a rolled-up bucket: the rollup is complete only before it now,
+    // and the hourly rollup only before its hour (min() keeps a null hours mark null).
+    unroll: db.prepare<[number, number, string, number]>(
+      `update readings_rollup_marks set rolled_ms = ?, hours_rolled_ms = min(hours_rolled_ms, ?)
+       where sensor_id = ? and rolled_ms > ?`,
     ),
     gatewayUsed: db.prepare<[number, number]>("update gateways set last_used_at = ? where id = ?"),
   };
@@ -128,7 +130,7 @@ export function storeReadings(
     for (const [id, info] of sensors) {
       if (info.rolledMs !== null && info.oldestTs < info.rolledMs) {
         const bucketMs = rollupBucketStart(info.oldestTs);
-        s.unroll.run(bucketMs, id, bucketMs);
+        s.unroll.run(bucketMs, bucketStart(bucketMs, ROLLUP_HOUR_MS), id, bucketMs);
       }
       const n = info.newest;
       if (!n || (info.lastSeen !== null && n.tsMs <= info.lastSeen)) continue;

@@ -1,13 +1,13 @@
 import { asc, eq } from "drizzle-orm";
 import type { SeriesPoint } from "@/domain/thin";
-import { foldExtremes, planWindow, ROLLUP_BUCKET_MS, type WindowPlan } from "@/domain/thinning";
+import { foldExtremes, planWindow, type WindowPlan } from "@/domain/thinning";
 import { log } from "../../log";
 import { getDb, getSqlite } from "../client";
 import { areas, sensors } from "../schema";
 import {
   rawReadings,
-  rolledThrough,
   rollupExtremes,
+  rollupMarks,
   rollupRows,
   rollUpBehindMs,
   rollUpSensor,
@@ -70,10 +70,11 @@ export function readingsWindow(sensorId: string, fromMs: number, toMs: number): 
  * A long window thinned for a chart: cut into `buckets` time buckets, each keeping the
  * readings holding its lowest and highest temperature and humidity (thinSeries's rule), so
  * no peak or dip is hidden; a window with no more than 4 × buckets readings comes back whole.
- * Buckets at least half an hour wide lie on the quarter hours (src/domain/thinning.ts) and
- * are answered from the readings rollup (queries/rollup.ts): a month of minutes reads about
- * 3,000 rollup rows instead of 43,200 readings, and raw readings only at the window's ragged
- * edges and where the rollup has not reached yet. Oldest first, each reading once.
+ * Buckets at least half an hour wide lie on the quarter hours, at least two hours wide on the
+ * hours (src/domain/thinning.ts), and are answered from the readings rollup
+ * (queries/rollup.ts): a month of minutes reads about 720 hourly rows instead of 43,200
+ * readings, and raw readings only at the window's ragged edges and where the rollup has not
+ * reached yet. Oldest first, each reading once.
  */
 export function thinnedWindow(
   sensorId: string,
@@ -82,7 +83,11 @@ export function thinnedWindow(
   buckets: number,
   nowMs: number = Date.now(),
 ): SeriesPoint[] {
-  let plan = planWindow(fromMs, toMs, buckets, rolledThrough(sensorId));
+  const planNow = () => {
+    const marks = rollupMarks(sensorId);
+    return planWindow(fromMs, toMs, buckets, marks.quarterMs, marks.hourMs);
+  };
+  let plan = planNow();
   // Far behind (a logger file's backfill the background roll-up has not reached yet): roll
   // this sensor up first, once, rather than read a long stretch raw. Should that fail (the
   // database busy with another writer), the answer is read raw, only slower.
@@ -96,16 +101,17 @@ export function thinnedWindow(
     } catch (err) {
       log.warn("chart query: rolling the sensor up failed; reading it raw", { sensorId, err });
     }
-    plan = planWindow(fromMs, toMs, buckets, rolledThrough(sensorId));
+    plan = planNow();
   }
   const fold = foldExtremes(plan.layout);
   const addRaw = (lo: number, hi: number) => {
     for (const [tsMs, tempC, rhPct] of rawReadings(sensorId, lo, hi)) fold.add(tsMs, tempC, rhPct);
   };
   for (const range of plan.raw) addRaw(range.fromMs, range.toMs);
-  for (const row of rollupRows(sensorId, plan.rollup.fromMs, plan.rollup.toMs))
-    if (!fold.addRollup(row[0], row[1], rollupExtremes(row)))
-      addRaw(row[0], row[0] + ROLLUP_BUCKET_MS);
+  for (const range of plan.rollup)
+    for (const row of rollupRows(sensorId, range.fromMs, range.toMs, range.spanMs))
+      if (!fold.addRollup(row[0], range.spanMs, row[1], rollupExtremes(row)))
+        addRaw(row[0], row[0] + range.spanMs);
   if (fold.readings() <= plan.layout.count * 4) return readingsWindow(sensorId, fromMs, toMs);
   return fold.points();
 }

@@ -35,29 +35,38 @@ export const readings = sqliteTable(
  * no row. Only buckets before the sensor's mark in readings_rollup_marks are complete; rows
  * at or after it are stale and rewritten by the next roll-up. WITHOUT ROWID (migration 0005).
  */
-export const readingsRollup = sqliteTable(
-  "readings_rollup",
-  {
-    sensorId: text("sensor_id")
-      .notNull()
-      .references(() => sensors.id),
-    bucketMs: epochMs("bucket_ms").notNull(),
-    readings: integer("readings").notNull(),
-    loTempTs: epochMs("lo_temp_ts").notNull(),
-    loTempC: real("lo_temp_c").notNull(),
-    loTempRhPct: real("lo_temp_rh_pct"),
-    hiTempTs: epochMs("hi_temp_ts").notNull(),
-    hiTempC: real("hi_temp_c").notNull(),
-    hiTempRhPct: real("hi_temp_rh_pct"),
-    loRhTs: epochMs("lo_rh_ts"),
-    loRhTempC: real("lo_rh_temp_c"),
-    loRhPct: real("lo_rh_pct"),
-    hiRhTs: epochMs("hi_rh_ts"),
-    hiRhTempC: real("hi_rh_temp_c"),
-    hiRhPct: real("hi_rh_pct"),
-  },
-  (t) => [primaryKey({ columns: [t.sensorId, t.bucketMs] })],
-);
+const rollupColumns = {
+  sensorId: text("sensor_id")
+    .notNull()
+    .references(() => sensors.id),
+  bucketMs: epochMs("bucket_ms").notNull(),
+  readings: integer("readings").notNull(),
+  loTempTs: epochMs("lo_temp_ts").notNull(),
+  loTempC: real("lo_temp_c").notNull(),
+  loTempRhPct: real("lo_temp_rh_pct"),
+  hiTempTs: epochMs("hi_temp_ts").notNull(),
+  hiTempC: real("hi_temp_c").notNull(),
+  hiTempRhPct: real("hi_temp_rh_pct"),
+  loRhTs: epochMs("lo_rh_ts"),
+  loRhTempC: real("lo_rh_temp_c"),
+  loRhPct: real("lo_rh_pct"),
+  hiRhTs: epochMs("hi_rh_ts"),
+  hiRhTempC: real("hi_rh_temp_c"),
+  hiRhPct: real("hi_rh_pct"),
+};
+
+export const readingsRollup = sqliteTable("readings_rollup", rollupColumns, (t) => [
+  primaryKey({ columns: [t.sensorId, t.bucketMs] }),
+]);
+
+/**
+ * The same for whole hours (bucket_ms a multiple of 3,600,000), rolled up from the hour's
+ * four quarter-hour rows, so a month's chart reads 720 rows a sensor instead of 2,880. Only
+ * hours before the sensor's hours_rolled_ms are complete. WITHOUT ROWID (migration 0006).
+ */
+export const readingsRollupHours = sqliteTable("readings_rollup_hours", rollupColumns, (t) => [
+  primaryKey({ columns: [t.sensorId, t.bucketMs] }),
+]);
 
 /**
  * How far each sensor's rollup is complete: every 15-minute bucket ending at or before
@@ -70,6 +79,11 @@ export const readingsRollupMarks = sqliteTable("readings_rollup_marks", {
     .primaryKey()
     .references(() => sensors.id),
   rolledMs: epochMs("rolled_ms").notNull(),
+  /**
+   * How far the hourly rollup is complete: an hour boundary never past rolled_ms (hours are
+   * rolled up from complete quarter hours; ingest lowers both). Null: no hour rolled up yet.
+   */
+  hoursRolledMs: epochMs("hours_rolled_ms"),
 });
 
 /** Logger files uploaded by hand, and lab files of cylinder breaks. */

@@ -41,7 +41,7 @@ export const GET: APIRoute = endpoint(async ({ locals, params, url }) => {
       { field: "from", error: "window too long" },
     ]);
   // A window far longer than the points wanted (at one reading a minute) is thinned from the
-  // 15-minute readings rollup (buckets on the quarter hours, each keeping its extremes), so a
+  // readings rollup (buckets on the hours or quarter hours, each keeping its extremes), so a
   // month of readings never has to be read row by row.
   const max = parsed.data.max_points;
   const long = (to - from) / 60_000 > 4 * max;
