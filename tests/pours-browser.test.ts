@@ -93,6 +93,22 @@ describe.skipIf(!available)("pours in the browser", () => {
       expect(pour.fresh_tests.slump_mm).toBeCloseTo(177.8, 1);
       expect(pour.products).toEqual([{ product: "Post base 8 in.", piece_count: 12, marks: null }]);
 
+      // The record is corrected on the phone, by keyboard: it was a spread (SCC), 24 in.
+      await page.getByRole("button", { name: "Edit products, tests and notes" }).click();
+      await page.getByRole("radio", { name: "Slump" }).focus();
+      await page.keyboard.press("ArrowRight");
+      expect(await page.getByRole("radio", { name: "Spread (SCC)" }).isChecked()).toBe(true);
+      await page.getByLabel("Spread (in.)").fill("24");
+      await page.getByRole("button", { name: "Save" }).click();
+      await expect
+        .poll(async () => {
+          const again = (await (await call(plinth.url, cookie, `/api/v1/pours/${id}`)).json()) as {
+            fresh_tests: { slump_mm: number | null; spread_mm: number | null };
+          };
+          return again.fresh_tests;
+        })
+        .toMatchObject({ slump_mm: null, spread_mm: 609.6 });
+
       await page.emulateMedia({ colorScheme: "dark" });
       await page.screenshot({
         path: screenshotPath("operator-pour-page-phone-dark"),

@@ -6,6 +6,7 @@ import { displayTemp, fToC, inToMm, type UnitSystem } from "@/domain/units";
 import { readProblem } from "@/lib/format";
 import { fromPlantInput, toPlantInput } from "@/lib/plantTime";
 import Field from "./Field";
+import FreshTestsFields from "./FreshTestsFields";
 
 export interface MixOption {
   id: number;
@@ -100,7 +101,6 @@ export default function PourNewForm({
 
   const mixId = form.watch("mix_id");
   const dischargeText = form.watch("discharge_temp");
-  const consistency = form.watch("consistency");
   const mix = mixes.find((m) => String(m.id) === mixId);
   const range = mix ? placingRange(mix.placing_temp_min_c, mix.placing_temp_max_c) : null;
   const dischargeC = (() => {
@@ -549,82 +549,7 @@ export default function PourNewForm({
               <p className="hint">Pick a mix to see its placing range.</p>
             )}
           </div>
-          <div className="field">
-            <span className="label" id="np-consistency-label">
-              Consistency
-            </span>
-            <div className="flex gap-2" role="radiogroup" aria-labelledby="np-consistency-label">
-              {(["slump", "spread"] as const).map((c) => (
-                <label
-                  key={c}
-                  className={`btn flex-1 text-sm has-[:focus-visible]:outline-3 has-[:focus-visible]:outline-offset-2 has-[:focus-visible]:outline-[var(--c-focus)] ${consistency === c ? "btn-primary" : "btn-quiet"}`}
-                >
-                  <input
-                    type="radio"
-                    value={c}
-                    className="sr-only"
-                    {...form.register("consistency")}
-                  />
-                  {c === "slump" ? "Slump" : "Spread (SCC)"}
-                </label>
-              ))}
-            </div>
-          </div>
-          <Field
-            id="np-consistency"
-            label={`${consistency === "slump" ? "Slump" : "Spread"} (${us ? "in." : "mm"})`}
-            error={errors.consistency_value?.message}
-          >
-            <input
-              id="np-consistency"
-              className="input figure"
-              inputMode="decimal"
-              aria-invalid={errors.consistency_value ? true : undefined}
-              aria-describedby={errId("np-consistency", errors.consistency_value)}
-              {...form.register("consistency_value")}
-            />
-          </Field>
-          <Field id="np-air" label="Air content (%)" error={errors.air_pct?.message}>
-            <input
-              id="np-air"
-              className="input figure"
-              inputMode="decimal"
-              aria-invalid={errors.air_pct ? true : undefined}
-              aria-describedby={errId("np-air", errors.air_pct)}
-              {...form.register("air_pct")}
-            />
-          </Field>
-          <Field
-            id="np-weight"
-            label={`Unit weight (${us ? "lb/ft³" : "kg/m³"})`}
-            error={errors.unit_weight?.message}
-          >
-            <input
-              id="np-weight"
-              className="input figure"
-              inputMode="decimal"
-              aria-invalid={errors.unit_weight ? true : undefined}
-              aria-describedby={errId("np-weight", errors.unit_weight)}
-              {...form.register("unit_weight")}
-            />
-          </Field>
-          <div className="sm:col-span-2">
-            <Field
-              id="np-cylinders"
-              label="Cylinders made (ids)"
-              error={errors.cylinder_ids?.message}
-              hint="Separate ids with commas."
-            >
-              <input
-                id="np-cylinders"
-                className="input figure"
-                autoComplete="off"
-                aria-invalid={errors.cylinder_ids ? true : undefined}
-                aria-describedby={errId("np-cylinders", errors.cylinder_ids)}
-                {...form.register("cylinder_ids")}
-              />
-            </Field>
-          </div>
+          <FreshTestsFields form={form} idPrefix="np" us={us} />
         </fieldset>
 
         <Field id="np-notes" label="Notes (optional)" error={errors.notes?.message}>

@@ -4,6 +4,7 @@ import { kgM3ToLbFt3, lbFt3ToKgM3 } from "@/domain/freshChecks";
 import { displayTemp, fToC, inToMm, mmToIn, type UnitSystem } from "@/domain/units";
 import { readProblem } from "@/lib/format";
 import Field from "./Field";
+import FreshTestsFields from "./FreshTestsFields";
 
 /** The parts of a pour (GET /api/v1/pours/{id}) this island shows and edits. */
 export interface PourRecordData {
@@ -90,7 +91,6 @@ export default function PourRecord({ initial, units, canEdit }: Props) {
   const form = useForm<FormValues>({ defaultValues: toForm(initial) });
   const rows = useFieldArray({ control: form.control, name: "products" });
   const { errors, isSubmitting } = form.formState;
-  const consistency = form.watch("consistency");
 
   async function save(v: FormValues) {
     setNotice(null);
@@ -376,80 +376,7 @@ export default function PourRecord({ initial, units, canEdit }: Props) {
                 {...form.register("discharge_temp")}
               />
             </Field>
-            <div className="field">
-              <span className="label" id="pr-consistency-label">
-                Consistency
-              </span>
-              <div className="flex gap-2" role="radiogroup" aria-labelledby="pr-consistency-label">
-                {(["slump", "spread"] as const).map((c) => (
-                  <label
-                    key={c}
-                    className={`btn flex-1 text-sm has-[:focus-visible]:outline-3 has-[:focus-visible]:outline-offset-2 has-[:focus-visible]:outline-[var(--c-focus)] ${consistency === c ? "btn-primary" : "btn-quiet"}`}
-                  >
-                    <input
-                      type="radio"
-                      value={c}
-                      className="sr-only"
-                      {...form.register("consistency")}
-                    />
-                    {c === "slump" ? "Slump" : "Spread (SCC)"}
-                  </label>
-                ))}
-              </div>
-            </div>
-            <Field
-              id="pr-consistency"
-              label={`${consistency === "slump" ? "Slump" : "Spread"} (${us ? "in." : "mm"})`}
-              error={errors.consistency_value?.message}
-            >
-              <input
-                id="pr-consistency"
-                className="input figure"
-                inputMode="decimal"
-                aria-invalid={errors.consistency_value ? true : undefined}
-                aria-describedby={errId("pr-consistency", errors.consistency_value)}
-                {...form.register("consistency_value")}
-              />
-            </Field>
-            <Field id="pr-air" label="Air content (%)" error={errors.air_pct?.message}>
-              <input
-                id="pr-air"
-                className="input figure"
-                inputMode="decimal"
-                aria-invalid={errors.air_pct ? true : undefined}
-                aria-describedby={errId("pr-air", errors.air_pct)}
-                {...form.register("air_pct")}
-              />
-            </Field>
-            <Field
-              id="pr-weight"
-              label={`Unit weight (${us ? "lb/ft³" : "kg/m³"})`}
-              error={errors.unit_weight?.message}
-            >
-              <input
-                id="pr-weight"
-                className="input figure"
-                inputMode="decimal"
-                aria-invalid={errors.unit_weight ? true : undefined}
-                aria-describedby={errId("pr-weight", errors.unit_weight)}
-                {...form.register("unit_weight")}
-              />
-            </Field>
-            <Field
-              id="pr-cylinders"
-              label="Cylinders made (ids)"
-              error={errors.cylinder_ids?.message}
-              hint="Separate ids with commas."
-            >
-              <input
-                id="pr-cylinders"
-                className="input figure"
-                autoComplete="off"
-                aria-invalid={errors.cylinder_ids ? true : undefined}
-                aria-describedby={errId("pr-cylinders", errors.cylinder_ids)}
-                {...form.register("cylinder_ids")}
-              />
-            </Field>
+            <FreshTestsFields form={form} idPrefix="pr" us={us} />
           </fieldset>
           <Field id="pr-notes" label="Notes" error={errors.notes?.message}>
             <textarea
