@@ -100,9 +100,12 @@ export function applyOffsets(
   tempOffsetC: number,
   rhOffsetPct: number,
 ): CleanReading {
+  // Written out rather than spread: this runs for every reading stored.
   return {
-    ...r,
+    sensorId: r.sensorId,
+    tsMs: r.tsMs,
     tempC: r.tempC + tempOffsetC,
     rhPct: r.rhPct === null ? null : Math.min(100, Math.max(0, r.rhPct + rhOffsetPct)),
+    batteryPct: r.batteryPct,
   };
 }

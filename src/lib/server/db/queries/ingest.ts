@@ -122,7 +122,14 @@ export function storeReadings(
         duplicates++;
         continue;
       }
-      const kept = { ...r, latest: false };
+      const kept = {
+        sensorId: r.sensorId,
+        tsMs: r.tsMs,
+        tempC: r.tempC,
+        rhPct: r.rhPct,
+        batteryPct: r.batteryPct,
+        latest: false,
+      };
       stored.push(kept);
       if (!info.newest || r.tsMs > info.newest.tsMs) info.newest = kept;
       if (r.tsMs < info.oldestTs) info.oldestTs = r.tsMs;
