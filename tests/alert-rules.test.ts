@@ -246,6 +246,29 @@ describe("QC keeps the rules", () => {
     });
   });
 
+  it("refuses a second rule of the same name (409, on the name field), letter case and spaces aside", async () => {
+    // Rules are told apart by name on alerts, texts and the audit (Plinth policy).
+    const first = await create(quietRule("Bin B too warm"));
+    const twin = await send(qc, "/api/v1/alert-rules", "POST", quietRule("  bin b TOO warm "));
+    expect(twin.status).toBe(409);
+    expect(((await twin.json()) as Problem).errors).toEqual([
+      { field: "name", error: 'Another rule is already called "Bin B too warm"' },
+    ]);
+    const other = await create(quietRule("Bin C too warm"));
+    const rename = await send(qc, `/api/v1/alert-rules/${other.id}`, "PATCH", {
+      name: "BIN B too warm",
+    });
+    expect(rename.status).toBe(409);
+    // A rule's own name in other letters is no clash.
+    const own = await send(qc, `/api/v1/alert-rules/${first.id}`, "PATCH", {
+      name: "Bin B Too Warm",
+    });
+    expect(own.status).toBe(200);
+    const names = (await listRules()).map((r) => r.name.toLowerCase());
+    expect(names.filter((n) => n === "bin b too warm")).toHaveLength(1);
+    expect(names.filter((n) => n === "bin c too warm")).toHaveLength(1);
+  });
+
   it("writes nothing when a change changes nothing", async () => {
     const made = await create(quietRule("Unchanged"));
     const res = await send(qc, `/api/v1/alert-rules/${made.id}`, "PATCH", { threshold: 119 });

@@ -2,6 +2,30 @@
 import { describeLimit, ruleKinds } from "@/domain/alerts/rules";
 import type { AlertRuleOut } from "@/lib/schemas/alertRules";
 import type { AlertRuleRow, AlertRuleView } from "../db/queries/alertRules";
+import { problem, type FieldError } from "../http/responses";
+
+/** A well-formed rule whose scope names an area, sensor or pour Plinth does not have (422). */
+export const scopeNotFound = (errors: FieldError[]) =>
+  problem(
+    422,
+    "scope-not-found",
+    "The rule's scope names something that does not exist",
+    "Choose an area, sensor or pour that Plinth knows.",
+    { errors },
+  );
+
+/**
+ * Another rule already has the name (409): rules are told apart by name on the alerts, in
+ * texts and in the audit, so two of the same name would read as one.
+ */
+export const ruleNameTaken = (name: string) =>
+  problem(
+    409,
+    "rule-name-taken",
+    "Another rule has that name",
+    `A rule called "${name}" already exists. Give this one a name of its own, or change that rule instead.`,
+    { errors: [{ field: "name", error: `Another rule is already called "${name}"` }] },
+  );
 
 const minutes = (ms: number | null) => (ms === null ? null : ms / 60_000);
 

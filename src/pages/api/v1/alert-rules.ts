@@ -1,20 +1,20 @@
 import type { APIRoute } from "astro";
 import { alertRuleCreateBody } from "@/lib/schemas/alertRules";
-import { createAlertRule, listAlertRules, missingScope } from "@/lib/server/db/queries/alertRules";
+import {
+  createAlertRule,
+  listAlertRules,
+  missingScope,
+  ruleNamed,
+} from "@/lib/server/db/queries/alertRules";
 import { auditActor, endpoint, requireAction } from "@/lib/server/http/guard";
 import { parseBody } from "@/lib/server/http/parse";
-import { json, problem, type FieldError } from "@/lib/server/http/responses";
-import { presentRule, ruleFieldsOut } from "@/lib/server/present/alertRules";
-
-/** A well-formed rule whose scope names an area, sensor or pour Plinth does not have. */
-const scopeNotFound = (errors: FieldError[]) =>
-  problem(
-    422,
-    "scope-not-found",
-    "The rule's scope names something that does not exist",
-    "Choose an area, sensor or pour that Plinth knows.",
-    { errors },
-  );
+import { json } from "@/lib/server/http/responses";
+import {
+  presentRule,
+  ruleFieldsOut,
+  ruleNameTaken,
+  scopeNotFound,
+} from "@/lib/server/present/alertRules";
 
 /** Every alert rule by name, with what it watches and its open episodes. */
 export const GET: APIRoute = endpoint(async ({ locals }) => {
@@ -34,6 +34,8 @@ export const POST: APIRoute = endpoint(async (ctx) => {
     pourId: b.scope.pour_id,
   });
   if (missing.length > 0) return scopeNotFound(missing);
+  const clash = ruleNamed(b.name);
+  if (clash) return ruleNameTaken(clash.name);
   const view = createAlertRule(
     {
       name: b.name,

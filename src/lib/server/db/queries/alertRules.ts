@@ -212,6 +212,26 @@ export function seedDefaultRules(userId: number | null): number {
   return added;
 }
 
+/**
+ * The other rule already called `name`, letter case and outer spaces aside (none: undefined);
+ * `exceptId` is the rule being renamed.
+ */
+export function ruleNamed(
+  name: string,
+  exceptId?: number,
+): { id: number; name: string } | undefined {
+  return getDb()
+    .select({ id: alertRules.id, name: alertRules.name })
+    .from(alertRules)
+    .where(
+      and(
+        sql`lower(trim(${alertRules.name})) = lower(trim(${name}))`,
+        exceptId === undefined ? undefined : ne(alertRules.id, exceptId),
+      ),
+    )
+    .get();
+}
+
 /** Which of the scope's area, sensor and pour do not exist, one entry per field. */
 export function missingScope(scope: {
   areaId?: number | null;

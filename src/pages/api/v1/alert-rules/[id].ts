@@ -7,30 +7,19 @@ import {
   deleteAlertRule,
   getAlertRule,
   missingScope,
+  ruleNamed,
   updateAlertRule,
   type AlertRulePatch,
 } from "@/lib/server/db/queries/alertRules";
 import { auditActor, endpoint, requireAction } from "@/lib/server/http/guard";
 import { parseBody, parseId } from "@/lib/server/http/parse";
+import { badRequest, conflict, json, noContent, notFound } from "@/lib/server/http/responses";
 import {
-  badRequest,
-  conflict,
-  json,
-  noContent,
-  notFound,
-  problem,
-  type FieldError,
-} from "@/lib/server/http/responses";
-import { presentRule, ruleFieldsOut } from "@/lib/server/present/alertRules";
-
-const scopeNotFound = (errors: FieldError[]) =>
-  problem(
-    422,
-    "scope-not-found",
-    "The rule's scope names something that does not exist",
-    "Choose an area, sensor or pour that Plinth knows.",
-    { errors },
-  );
+  presentRule,
+  ruleFieldsOut,
+  ruleNameTaken,
+  scopeNotFound,
+} from "@/lib/server/present/alertRules";
 
 const ms = (min: number | null) => (min === null ? null : Math.round(min * 60_000));
 
@@ -85,6 +74,10 @@ export const PATCH: APIRoute = endpoint(async (ctx) => {
     (k) => after.scope[k] !== before.scope[k],
   );
   if (changed.length === 0 && scopeChanged.length === 0) return json(presentRule(view));
+  if (changed.includes("name")) {
+    const clash = ruleNamed(after.name, view.rule.id);
+    if (clash) return ruleNameTaken(clash.name);
+  }
   if (changed.includes("kind")) {
     const n = countRuleEpisodes(view.rule.id);
     if (n > 0)
