@@ -1,8 +1,16 @@
 import Database from "better-sqlite3";
 import type { Locator, Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath, waitForIslands } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import {
+  chromiumAvailable,
+  DESK,
+  openSignedIn,
+  PHONE,
+  screenshotPath,
+  waitForIslands,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The alert-rules page in a real browser. QC adds a rule by keyboard alone in °F (the demo
 // accounts use US units), changes it, meets the refusal to delete a rule with a record and
@@ -11,21 +19,7 @@ import { startPlinth, type RunningPlinth } from "./helpers/server";
 
 const available = chromiumAvailable();
 let attempts = 0;
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signInAs(page: Page, who: string) {
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", `${who}@example.com`);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
+const plinth = plinthForBrowser();
 
 async function openRules(page: Page) {
   await page.goto(`${plinth.url}/alerts/rules`);
@@ -65,18 +59,16 @@ const card = (page: Page, name: string) =>
 
 describe.skipIf(!available)("the alert-rules page", () => {
   it("lets QC add a rule by keyboard in °F, change it, and disable the one it may not delete", async () => {
-    const { context, close } = await openBrowser({
-      width: 1440,
-      height: 900,
-      colorScheme: "light",
-    });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "light" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     // Names of their own, so a second attempt of this test does not meet the first one's rules.
     const attempt = ++attempts;
     const name3 = `Bed 3 too hot (${attempt})`;
     const spare = `Spare rule (${attempt})`;
     try {
-      const page = await context.newPage();
-      await signInAs(page, "qc");
       await openRules(page);
       expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe("Alert rules");
       expect(
@@ -241,15 +233,12 @@ describe.skipIf(!available)("the alert-rules page", () => {
   });
 
   it("fits a phone in the dark with the form open, without sideways scrolling", async () => {
-    const { context, close } = await openBrowser({
-      width: 390,
-      height: 844,
-      mobile: true,
-      colorScheme: "dark",
-    });
+    const { page, close } = await openSignedIn(
+      { ...PHONE, colorScheme: "dark" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInAs(page, "qc");
       await openRules(page);
       expect(await page.getByTestId("rule").count()).toBeGreaterThan(0);
       // "Cold cure bag" keeps 10 °C = 50 °F (domain.md §8.3).
@@ -275,13 +264,11 @@ describe.skipIf(!available)("the alert-rules page", () => {
   });
 
   it.each([
-    { width: 390, height: 844, mobile: true, colorScheme: "light" as const, shot: "phone-light" },
-    { width: 1440, height: 900, mobile: false, colorScheme: "dark" as const, shot: "desktop-dark" },
+    { ...PHONE, colorScheme: "light" as const, shot: "phone-light" },
+    { ...DESK, mobile: false, colorScheme: "dark" as const, shot: "desktop-dark" },
   ])("shows an operator the rules read only ($shot)", async ({ shot, ...size }) => {
-    const { context, close } = await openBrowser(size);
+    const { page, close } = await openSignedIn(size, demoEmail("operator"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signInAs(page, "operator");
       await openRules(page);
       expect(await page.getByTestId("rule").count()).toBeGreaterThan(0);
       expect(await page.getByTestId("read-only-note").textContent()).toContain(

@@ -1,41 +1,36 @@
 import Database from "better-sqlite3";
-import type { Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { seedAlerts, type SeededAlerts } from "./helpers/alertSeed";
-import { chromiumAvailable, openBrowser, screenshotPath, waitForIslands } from "./helpers/browser";
-import { call, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import {
+  chromiumAvailable,
+  DESK,
+  openSignedIn,
+  PHONE,
+  screenAt,
+  screenshotPath,
+  waitForIslands,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { call, demoEmail, signIn } from "./helpers/server";
 
 // Alerts in a real browser: the night operator acknowledges an open alert from a phone with
 // the keyboard alone, the live floor marks a sensor with an alert and follows its changes as
 // they happen, and every alert page is kept as a screenshot at phone and desktop sizes.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
+const plinth = plinthForBrowser();
 let seed: SeededAlerts;
-beforeAll(async () => {
-  if (!available) return;
-  plinth = await startPlinth();
-  seed = seedAlerts(plinth.dbPath);
+beforeAll(() => {
+  if (available) seed = seedAlerts(plinth.dbPath);
 });
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signInAs(page: Page, who: string) {
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", `${who}@example.com`);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
-
-const phone = { width: 390, height: 844, mobile: true } as const;
 
 describe.skipIf(!available)("alerts in the browser", () => {
   it("lets an operator on a phone acknowledge an open alert with a note, by keyboard", async () => {
-    const { context, close } = await openBrowser({ ...phone, colorScheme: "dark" });
+    const { page, close } = await openSignedIn(
+      { ...PHONE, colorScheme: "dark" },
+      demoEmail("operator"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInAs(page, "operator");
       await page.goto(`${plinth.url}/alerts`);
       await waitForIslands(page);
       const card = page.locator(`[data-testid="open-alerts"] [data-episode="${seed.openCold}"]`);
@@ -101,10 +96,12 @@ describe.skipIf(!available)("alerts in the browser", () => {
   });
 
   it("marks the floor tile of a sensor with an alert and follows it live", async () => {
-    const { context, close } = await openBrowser({ ...phone, colorScheme: "light" });
+    const { page, close } = await openSignedIn(
+      { ...PHONE, colorScheme: "light" },
+      demoEmail("operator"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInAs(page, "operator");
       await page.goto(`${plinth.url}/floor`);
       await expect
         .poll(() => page.getByRole("status").filter({ hasText: "Live" }).count(), {
@@ -179,14 +176,12 @@ describe.skipIf(!available)("alerts in the browser", () => {
     } finally {
       db.close();
     }
-    const { context, close } = await openBrowser({
-      width: 1440,
-      height: 900,
-      colorScheme: "light",
-    });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "light" },
+      demoEmail("viewer"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInAs(page, "viewer");
       await page.goto(`${plinth.url}/alerts?sensor=CB-04`);
       await waitForIslands(page);
       const rows = page.locator('[data-testid="alert-history"] > li');
@@ -220,16 +215,13 @@ describe.skipIf(!available)("alerts in the browser", () => {
     [1440, "dark"],
   ] as const) {
     it(`keeps screenshots of the alert pages (${width} px, ${scheme})`, async () => {
-      const { context, close } = await openBrowser({
-        width,
-        height: width < 500 ? 844 : 900,
-        mobile: width < 500,
-        colorScheme: scheme,
-      });
+      const { page, close } = await openSignedIn(
+        screenAt(width, scheme),
+        demoEmail("operator"),
+        plinth.url,
+      );
       const size = width < 500 ? "phone" : "desktop";
       try {
-        const page = await context.newPage();
-        await signInAs(page, "operator");
         for (const [path, name] of [
           ["/alerts", "alerts"],
           [`/alerts/${seed.clearedDry}`, "alert-story"],

@@ -1,15 +1,15 @@
 import Database from "better-sqlite3";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { beforeAll, describe, expect, it } from "vitest";
+import { chromiumAvailable, DESK, openSignedIn, PHONE, screenshotPath } from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The batch-plant operator reads the bins page on a phone: live bin tiles, the next batch of
 // the chosen mix, the water temperature to set, in °F for the demo's inch-pound accounts.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
+const plinth = plinthForBrowser();
+beforeAll(() => {
   if (!available) return;
-  plinth = await startPlinth();
   // A mix QC has named but not yet proportioned (as POST /api/v1/mixes makes one).
   const db = new Database(plinth.dbPath, { fileMustExist: true });
   db.pragma("busy_timeout = 5000");
@@ -23,9 +23,6 @@ beforeAll(async () => {
 });
 
 let clockMs = 0;
-afterAll(async () => {
-  await plinth?.stop();
-});
 
 /** Every demo bin reads `tempC` now (each call a later timestamp than the one before). */
 async function sendBins(tempC: number) {
@@ -51,19 +48,12 @@ describe.skipIf(!available)("the bins page", () => {
     async (scheme) => {
       // Bins at 8 °C (46.4 °F, domain.md §8.3) before the page opens.
       await sendBins(8);
-      const { context, close } = await openBrowser({
-        width: 390,
-        height: 844,
-        mobile: true,
-        colorScheme: scheme,
-      });
+      const { page, close } = await openSignedIn(
+        { ...PHONE, colorScheme: scheme },
+        demoEmail("operator"),
+        plinth.url,
+      );
       try {
-        const page = await context.newPage();
-        await page.goto(`${plinth.url}/login`);
-        await page.fill("#email", "operator@example.com");
-        await page.fill("#password", "demo-plinth-pass");
-        await page.click("button[type=submit]");
-        await page.waitForURL(`${plinth.url}/`);
         await page.goto(`${plinth.url}/bins`);
         await expect
           .poll(() => page.getByRole("status").filter({ hasText: "Live" }).count(), {
@@ -118,14 +108,8 @@ describe.skipIf(!available)("the bins page", () => {
   );
 
   it("tells which proportions a mix still lacks, on a desktop", async () => {
-    const { context, close } = await openBrowser({ width: 1440, height: 900 });
+    const { page, close } = await openSignedIn(DESK, demoEmail("operator"), plinth.url);
     try {
-      const page = await context.newPage();
-      await page.goto(`${plinth.url}/login`);
-      await page.fill("#email", "operator@example.com");
-      await page.fill("#password", "demo-plinth-pass");
-      await page.click("button[type=submit]");
-      await page.waitForURL(`${plinth.url}/`);
       await page.goto(`${plinth.url}/bins`);
       await expect.poll(() => page.getByTestId("prediction").count()).toBe(1);
       const mix = page.getByLabel("Mix", { exact: true });

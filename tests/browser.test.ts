@@ -1,20 +1,21 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import {
+  chromiumAvailable,
+  DESK,
+  openBrowser,
+  PHONE,
+  screenshotPath,
+  unlabelled,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
 
 // Headless Chromium against the built server: the operator on a phone, the manager at a
 // desk, light and dark. Screenshots are kept in test-results/screenshots/.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
+const plinth = plinthForBrowser();
 
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
+/** Signs in by keyboard alone: the e-mail field has focus when the page opens. */
 async function signInByKeyboard(page: Page, email: string) {
   await page.goto(`${plinth.url}/login`);
   await expect.poll(() => page.evaluate(() => document.activeElement?.id)).toBe("email");
@@ -23,22 +24,6 @@ async function signInByKeyboard(page: Page, email: string) {
   await page.keyboard.type("demo-plinth-pass");
   await page.keyboard.press("Enter");
   await page.waitForURL(`${plinth.url}/`);
-}
-
-/** Inputs, selects and text areas with no accessible label. */
-function unlabelled(page: Page) {
-  return page.evaluate(() =>
-    [...document.querySelectorAll("input:not([type=hidden]), select, textarea")]
-      .filter((el) => {
-        const e = el as HTMLInputElement;
-        return (
-          !(e.labels && e.labels.length > 0) &&
-          !e.getAttribute("aria-label") &&
-          !e.getAttribute("aria-labelledby")
-        );
-      })
-      .map((el) => el.outerHTML.slice(0, 80)),
-  );
 }
 
 const bodyBackground = (page: Page) =>
@@ -51,12 +36,7 @@ const luminance = (rgb: string) => {
 describe.skipIf(!available)("in the browser", () => {
   for (const scheme of ["light", "dark"] as const) {
     it(`the operator signs in on a phone (${scheme}) and lands on the shift page`, async () => {
-      const { context, close } = await openBrowser({
-        width: 390,
-        height: 844,
-        mobile: true,
-        colorScheme: scheme,
-      });
+      const { context, close } = await openBrowser({ ...PHONE, colorScheme: scheme });
       try {
         const page = await context.newPage();
         await page.goto(`${plinth.url}/login`);
@@ -85,11 +65,7 @@ describe.skipIf(!available)("in the browser", () => {
     });
 
     it(`the manager signs in at a desk (${scheme}), adds a person and reads the audit log`, async () => {
-      const { context, close } = await openBrowser({
-        width: 1440,
-        height: 900,
-        colorScheme: scheme,
-      });
+      const { context, close } = await openBrowser({ ...DESK, colorScheme: scheme });
       try {
         const page = await context.newPage();
         await signInByKeyboard(page, "manager@example.com");
@@ -130,11 +106,7 @@ describe.skipIf(!available)("in the browser", () => {
   }
 
   it("switches to the dark theme from the header and keeps it", async () => {
-    const { context, close } = await openBrowser({
-      width: 1440,
-      height: 900,
-      colorScheme: "light",
-    });
+    const { context, close } = await openBrowser({ ...DESK, colorScheme: "light" });
     try {
       const page = await context.newPage();
       await signInByKeyboard(page, "qc@example.com");

@@ -1,17 +1,12 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import { chromiumAvailable, DESK, openSignedIn, screenAt, screenshotPath } from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The live floor in a real browser: a reading committed on the server shows on an open
 // page within about a second, by server-sent events.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
+const plinth = plinthForBrowser();
 
 describe.skipIf(!available)("the live floor", () => {
   for (const [width, scheme] of [
@@ -19,19 +14,12 @@ describe.skipIf(!available)("the live floor", () => {
     [1440, "light"],
   ] as const) {
     it(`shows a new reading on an open page within a second (${width} px, ${scheme})`, async () => {
-      const { context, close } = await openBrowser({
-        width,
-        height: width < 500 ? 844 : 900,
-        mobile: width < 500,
-        colorScheme: scheme,
-      });
+      const { page, close } = await openSignedIn(
+        screenAt(width, scheme),
+        demoEmail("operator"),
+        plinth.url,
+      );
       try {
-        const page = await context.newPage();
-        await page.goto(`${plinth.url}/login`);
-        await page.fill("#email", "operator@example.com");
-        await page.fill("#password", "demo-plinth-pass");
-        await page.click("button[type=submit]");
-        await page.waitForURL(`${plinth.url}/`);
         await page.goto(`${plinth.url}/floor`);
         await expect
           .poll(() => page.getByRole("status").filter({ hasText: "Live" }).count(), {
@@ -71,14 +59,12 @@ describe.skipIf(!available)("the live floor", () => {
   }
 
   it("draws a sensor's chart with its limits", async () => {
-    const { context, close } = await openBrowser({ width: 1440, height: 900, colorScheme: "dark" });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "dark" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await page.goto(`${plinth.url}/login`);
-      await page.fill("#email", "qc@example.com");
-      await page.fill("#password", "demo-plinth-pass");
-      await page.click("button[type=submit]");
-      await page.waitForURL(`${plinth.url}/`);
       await page.goto(`${plinth.url}/sensors/CB-17`);
       await expect
         .poll(() => page.getByTestId("sensor-chart").locator("canvas").count(), { timeout: 5_000 })

@@ -1,38 +1,21 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import { chromiumAvailable, DESK, openSignedIn, PHONE, screenshotPath } from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The manager reads a pour's cure history in a real browser: the three charts draw, the page
 // fits a phone without sideways scrolling, and "Download CSV" hands over the file.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signedInPage(o: {
-  width: number;
-  height: number;
-  mobile?: boolean;
-  colorScheme: "light" | "dark";
-}) {
-  const browser = await openBrowser(o);
-  const page = await browser.context.newPage();
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", "manager@example.com");
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-  return { page, close: browser.close };
-}
+const plinth = plinthForBrowser();
 
 describe.skipIf(!available)("a pour's cure history in the browser", () => {
   for (const scheme of ["light", "dark"] as const) {
     it(`draws the temperature, humidity and strength charts on a desktop (${scheme})`, async () => {
-      const { page, close } = await signedInPage({ width: 1440, height: 900, colorScheme: scheme });
+      const { page, close } = await openSignedIn(
+        { ...DESK, colorScheme: scheme },
+        demoEmail("manager"),
+        plinth.url,
+      );
       try {
         await page.goto(`${plinth.url}/pours/1/history`);
         for (const id of ["history-temp-chart", "history-rh-chart", "history-strength-chart"])
@@ -51,12 +34,11 @@ describe.skipIf(!available)("a pour's cure history in the browser", () => {
   }
 
   it("fits a phone in the dark, and hands over the CSV", async () => {
-    const { page, close } = await signedInPage({
-      width: 390,
-      height: 844,
-      mobile: true,
-      colorScheme: "dark",
-    });
+    const { page, close } = await openSignedIn(
+      { ...PHONE, colorScheme: "dark" },
+      demoEmail("manager"),
+      plinth.url,
+    );
     try {
       await page.goto(`${plinth.url}/pours/1/history`);
       await expect

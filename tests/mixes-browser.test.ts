@@ -1,37 +1,21 @@
-import type { Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import { chromiumAvailable, DESK, openSignedIn, PHONE, screenshotPath } from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // A mix's calibration in a real browser: QC opens HS-10, adds a break, fits, and sees the
 // chart and the warnings; on a phone in the dark, FC-8's warnings and chart are readable.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signInAs(page: Page, who: string) {
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", `${who}@example.com`);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
+const plinth = plinthForBrowser();
 
 describe.skipIf(!available)("a mix's calibration", () => {
   it("lets QC on a desk add a break to HS-10, fit it, and read the chart and warnings", async () => {
-    const { context, close } = await openBrowser({
-      width: 1440,
-      height: 900,
-      colorScheme: "light",
-    });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "light" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInAs(page, "qc");
       await page.goto(`${plinth.url}/mixes`);
       await page.getByTestId("mix-table").getByRole("link", { name: "HS-10" }).click();
       await page.waitForURL(/\/mixes\/\d+$/);
@@ -87,15 +71,12 @@ describe.skipIf(!available)("a mix's calibration", () => {
   });
 
   it("shows FC-8's warnings and chart on a phone in the dark without sideways scrolling", async () => {
-    const { context, close } = await openBrowser({
-      width: 390,
-      height: 844,
-      mobile: true,
-      colorScheme: "dark",
-    });
+    const { page, close } = await openSignedIn(
+      { ...PHONE, colorScheme: "dark" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInAs(page, "qc");
       await page.goto(`${plinth.url}/mixes`);
       await page.getByRole("list", { name: "Mixes" }).getByRole("link", { name: "FC-8" }).click();
       await page.waitForURL(/\/mixes\/\d+$/);
@@ -121,10 +102,8 @@ describe.skipIf(!available)("a mix's calibration", () => {
   });
 
   it("shows a viewer the calibration read only", async () => {
-    const { context, close } = await openBrowser({ width: 390, height: 844, mobile: true });
+    const { page, close } = await openSignedIn(PHONE, demoEmail("viewer"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signInAs(page, "viewer");
       await page.goto(`${plinth.url}/mixes`);
       await page.getByRole("list", { name: "Mixes" }).getByRole("link", { name: "HS-10" }).click();
       await page.waitForURL(/\/mixes\/\d+$/);

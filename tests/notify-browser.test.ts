@@ -1,18 +1,13 @@
 import Database from "better-sqlite3";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import { chromiumAvailable, DESK, openSignedIn, screenshotPath } from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The dev outbox page in a real browser: what the demo's local fakes caught shows up on an
 // open page by itself, under the banner that nothing left the machine.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
+const plinth = plinthForBrowser();
 
 function queue(dbPath: string, key: string, channel: "sms" | "email", to: string, body: string) {
   const db = new Database(dbPath);
@@ -64,14 +59,8 @@ describe.skipIf(!available)("the dev outbox page", () => {
       "+15550100003",
       "Plinth: cure bag CB-14 on P-2611-03 is dry (41 % RH for 30 min). Reply ACK to acknowledge.",
     );
-    const { context, close } = await openBrowser({ width: 1440, height: 900 });
+    const { page, close } = await openSignedIn(DESK, demoEmail("manager"), plinth.url);
     try {
-      const page = await context.newPage();
-      await page.goto(`${plinth.url}/login`);
-      await page.fill("#email", "manager@example.com");
-      await page.fill("#password", "demo-plinth-pass");
-      await page.click("button[type=submit]");
-      await page.waitForURL(`${plinth.url}/`);
       await page.goto(`${plinth.url}/dev/outbox`);
       await expect
         .poll(() => page.getByTestId("fakes-banner").textContent())

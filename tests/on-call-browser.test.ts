@@ -1,15 +1,23 @@
 import type { Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath, waitForIslands } from "./helpers/browser";
-import { call, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import { beforeAll, describe, expect, it } from "vitest";
+import {
+  chromiumAvailable,
+  DESK,
+  openSignedIn,
+  PHONE,
+  screenAt,
+  screenshotPath,
+  waitForIslands,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { call, demoEmail, signIn } from "./helpers/server";
 
 // The on-call page in a real browser: a manager keeps the rota by keyboard alone; everyone
 // reads who is on call now at phone and desktop sizes, light and dark.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
+const plinth = plinthForBrowser();
 beforeAll(async () => {
   if (!available) return;
-  plinth = await startPlinth();
   // Someone on call around the clock, whatever the demo seeded.
   const cookie = await signIn(plinth.url, "manager@example.com");
   const rota = (await (await call(plinth.url, cookie, "/api/v1/on-call")).json()) as {
@@ -32,26 +40,13 @@ beforeAll(async () => {
     if (res.status !== 201) throw new Error(`adding a shift answered ${res.status}`);
   }
 });
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signInAs(page: Page, who: string) {
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", `${who}@example.com`);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
 
 const focusedId = (page: Page) => page.evaluate(() => document.activeElement?.id ?? "");
 
 describe.skipIf(!available)("the on-call page", () => {
   it("lets a manager add a night shift by keyboard alone", async () => {
-    const { context, close } = await openBrowser({ width: 1440, height: 900 });
+    const { page, close } = await openSignedIn(DESK, demoEmail("manager"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signInAs(page, "manager");
       await page.goto(`${plinth.url}/on-call`);
       await waitForIslands(page);
 
@@ -135,10 +130,8 @@ describe.skipIf(!available)("the on-call page", () => {
   });
 
   it("lets a person set their phone and how they are told on their account page", async () => {
-    const { context, close } = await openBrowser({ width: 390, height: 844, mobile: true });
+    const { page, close } = await openSignedIn(PHONE, demoEmail("qc"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signInAs(page, "qc");
       await page.goto(`${plinth.url}/on-call`);
       await page.getByRole("link", { name: "Your phone and how you are told" }).click();
       await page.waitForURL(`${plinth.url}/account`);
@@ -189,15 +182,12 @@ describe.skipIf(!available)("the on-call page", () => {
     ["qc", 1440, "light"],
   ] as const) {
     it(`shows ${who} who is on call now (${width} px, ${scheme})`, async () => {
-      const { context, close } = await openBrowser({
-        width,
-        height: width < 500 ? 844 : 900,
-        mobile: width < 500,
-        colorScheme: scheme,
-      });
+      const { page, close } = await openSignedIn(
+        screenAt(width, scheme),
+        demoEmail(who),
+        plinth.url,
+      );
       try {
-        const page = await context.newPage();
-        await signInAs(page, who);
         await page.goto(`${plinth.url}/on-call`);
         await waitForIslands(page);
         const now = page.getByTestId("on-call-now");

@@ -1,39 +1,26 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { call, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import {
+  chromiumAvailable,
+  DESK,
+  openSignedIn,
+  PHONE,
+  screenshotPath,
+  waitForIslands,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { call, demoEmail, signIn } from "./helpers/server";
 
 // The night-shift operator records a pour on a phone and lands on its page; QC enters a
 // cylinder break on a desktop and is warned when it comes in low.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-/** Waits until every island on the page has hydrated (Astro drops `ssr` from each then). */
-async function hydrated(page: import("playwright-core").Page) {
-  await page.waitForFunction(() => document.querySelectorAll("astro-island[ssr]").length === 0);
-}
-
-async function signInPage(page: import("playwright-core").Page, email: string) {
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", email);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
+const plinth = plinthForBrowser();
 
 describe.skipIf(!available)("pours in the browser", () => {
   it("an operator on a phone records a pour and lands on its page", async () => {
-    const { context, close } = await openBrowser({ width: 390, height: 844, mobile: true });
+    const { page, close } = await openSignedIn(PHONE, demoEmail("operator"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signInPage(page, "operator@example.com");
       await page.goto(`${plinth.url}/pours`);
-      await hydrated(page);
+      await waitForIslands(page);
       await page.getByRole("button", { name: "New pour" }).click();
       await page.getByLabel("Pour code").fill("P-2612-01");
       await page.locator("#np-mix").selectOption({ label: "HS-10" });
@@ -120,14 +107,12 @@ describe.skipIf(!available)("pours in the browser", () => {
   });
 
   it("QC enters a low cylinder break on a desktop and is told to recalibrate", async () => {
-    const { context, close } = await openBrowser({ width: 1440, height: 900 });
+    const { page, close } = await openSignedIn(DESK, demoEmail("qc"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signInPage(page, "qc@example.com");
       await page.goto(`${plinth.url}/pours?q=P-2611-03`);
       await page.getByRole("link", { name: "P-2611-03" }).click();
       await page.waitForURL(/\/pours\/\d+$/);
-      await hydrated(page);
+      await waitForIslands(page);
       await page.getByRole("button", { name: "Enter a break" }).click();
       await page.getByLabel("Cylinder id").fill("P2611-03-A");
       // 500 psi is far below any estimate of a 27-hour-old HS-10 pour in a heated room.

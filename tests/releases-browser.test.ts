@@ -1,26 +1,19 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { chromiumAvailable, openBrowser, screenshotPath, waitForIslands } from "./helpers/browser";
-import { call, demoEmail, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import {
+  chromiumAvailable,
+  DESK,
+  openSignedIn,
+  PHONE,
+  screenshotPath,
+  waitForIslands,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { call, demoEmail, signIn } from "./helpers/server";
 
 // The strength page and the strip release in a real browser (QC at a desk), and the floor's
 // strip and ship list on an operator's phone in the dark.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signInPage(page: import("playwright-core").Page, who: string) {
-  await page.goto(`${plinth.url}/login`);
-  await waitForIslands(page);
-  await page.fill("#email", `${who}@example.com`);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
+const plinth = plinthForBrowser();
 
 describe.skipIf(!available)("strip and ship in the browser", () => {
   it("QC signs a strip release of a demo pour that has reached strip, and sees it recorded", async () => {
@@ -32,14 +25,12 @@ describe.skipIf(!available)("strip and ship in the browser", () => {
     const pour = ready.ready_to_strip[0]!;
     expect(pour.strip.reached_at).not.toBeNull();
 
-    const { context, close } = await openBrowser({
-      width: 1440,
-      height: 900,
-      colorScheme: "light",
-    });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "light" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInPage(page, "qc");
       await page.goto(`${plinth.url}/pours/${pour.pour_id}/strength`);
       await waitForIslands(page);
       await expect.poll(() => page.getByRole("progressbar").count(), { timeout: 5_000 }).toBe(2);
@@ -90,10 +81,12 @@ describe.skipIf(!available)("strip and ship in the browser", () => {
       coming_up: { pour_id: number; next: string }[];
     };
     const pour = ready.coming_up.find((p) => p.next === "strip")!;
-    const { context, close } = await openBrowser({ width: 1440, height: 900, colorScheme: "dark" });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "dark" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInPage(page, "qc");
       await page.goto(`${plinth.url}/pours/${pour.pour_id}/strength`);
       await waitForIslands(page);
       await expect
@@ -110,15 +103,12 @@ describe.skipIf(!available)("strip and ship in the browser", () => {
   });
 
   it("the operator opens the strip and ship list on a phone in the dark", async () => {
-    const { context, close } = await openBrowser({
-      width: 390,
-      height: 844,
-      mobile: true,
-      colorScheme: "dark",
-    });
+    const { page, close } = await openSignedIn(
+      { ...PHONE, colorScheme: "dark" },
+      demoEmail("operator"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signInPage(page, "operator");
       await page.goto(`${plinth.url}/ready`);
       await waitForIslands(page);
       await expect

@@ -1,28 +1,14 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { chromiumAvailable, DESK, openSignedIn, PHONE, screenshotPath } from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The sensors and gateways pages in headless Chromium against the built server: the manager
 // at a desk adds a gateway and names a new sensor, QC records a check, the operator reads
 // the sensors on a phone. Screenshots are kept in test-results/screenshots/.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-async function signIn(page: Page, role: string) {
-  await page.goto(`${plinth.url}/login`);
-  await page.fill("#email", `${role}@example.com`);
-  await page.fill("#password", "demo-plinth-pass");
-  await page.click("button[type=submit]");
-  await page.waitForURL(`${plinth.url}/`);
-}
+const plinth = plinthForBrowser();
 
 async function open(page: Page, path: string) {
   await page.goto(`${plinth.url}${path}`);
@@ -50,10 +36,8 @@ const sendReading = (sensor: string, tempC: number) =>
 
 describe.skipIf(!available)("sensors and gateways in the browser", () => {
   it("the manager adds a gateway at a desk and sees its key once, then revokes it", async () => {
-    const { context, close } = await openBrowser({ width: 1440, height: 900 });
+    const { page, close } = await openSignedIn(DESK, demoEmail("manager"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signIn(page, "manager");
       await open(page, "/gateways");
       expect(await unlabelled(page)).toEqual([]);
 
@@ -104,10 +88,8 @@ describe.skipIf(!available)("sensors and gateways in the browser", () => {
 
   it("the manager names and places a new sensor from the queue", async () => {
     expect((await sendReading("GW-NEW9", 21.5)).status).toBe(200);
-    const { context, close } = await openBrowser({ width: 1440, height: 900 });
+    const { page, close } = await openSignedIn(DESK, demoEmail("manager"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signIn(page, "manager");
       await open(page, "/sensors");
       const queue = page.getByTestId("new-sensor-queue");
       expect(await queue.textContent()).toContain("GW-NEW9");
@@ -131,10 +113,12 @@ describe.skipIf(!available)("sensors and gateways in the browser", () => {
   });
 
   it("QC records a calibration check in their own units and sees the correction", async () => {
-    const { context, close } = await openBrowser({ width: 1440, height: 900, colorScheme: "dark" });
+    const { page, close } = await openSignedIn(
+      { ...DESK, colorScheme: "dark" },
+      demoEmail("qc"),
+      plinth.url,
+    );
     try {
-      const page = await context.newPage();
-      await signIn(page, "qc");
       await open(page, "/sensors");
       // QC checks sensors but does not name, place or retire them.
       expect(await page.getByRole("button", { name: /^Retire/ }).count()).toBe(0);
@@ -163,10 +147,8 @@ describe.skipIf(!available)("sensors and gateways in the browser", () => {
   });
 
   it("the operator reads the sensors on a phone: cards, filters, no manager actions", async () => {
-    const { context, close } = await openBrowser({ width: 390, height: 844, mobile: true });
+    const { page, close } = await openSignedIn(PHONE, demoEmail("operator"), plinth.url);
     try {
-      const page = await context.newPage();
-      await signIn(page, "operator");
       await open(page, "/sensors");
       expect(await unlabelled(page)).toEqual([]);
       expect(await page.getByTestId("sensor-cards").isVisible()).toBe(true);

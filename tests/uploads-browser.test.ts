@@ -1,34 +1,17 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import type { Page } from "playwright-core";
-import { chromiumAvailable, openBrowser, screenshotPath } from "./helpers/browser";
-import { startPlinth, type RunningPlinth } from "./helpers/server";
+import { describe, expect, it } from "vitest";
+import {
+  chromiumAvailable,
+  openSignedIn,
+  PHONE,
+  screenshotPath,
+  unlabelled,
+} from "./helpers/browser";
+import { plinthForBrowser } from "./helpers/browserServer";
+import { demoEmail } from "./helpers/server";
 
 // The operator brings a logger file in from a phone: choose it, check the preview, import.
 const available = chromiumAvailable();
-let plinth: RunningPlinth;
-
-beforeAll(async () => {
-  if (available) plinth = await startPlinth();
-});
-afterAll(async () => {
-  await plinth?.stop();
-});
-
-/** Inputs, selects and text areas with no accessible label. */
-function unlabelled(page: Page) {
-  return page.evaluate(() =>
-    [...document.querySelectorAll("input:not([type=hidden]), select, textarea")]
-      .filter((el) => {
-        const e = el as HTMLInputElement;
-        return (
-          !(e.labels && e.labels.length > 0) &&
-          !e.getAttribute("aria-label") &&
-          !e.getAttribute("aria-labelledby")
-        );
-      })
-      .map((el) => el.outerHTML.slice(0, 80)),
-  );
-}
+const plinth = plinthForBrowser();
 
 const csv = [
   "Date/Time,Temp (°F),RH %",
@@ -40,15 +23,8 @@ const csv = [
 
 describe.skipIf(!available)("logger uploads in the browser", () => {
   it("the operator uploads a file on a phone, sees the bad row in the preview, and imports the rest", async () => {
-    const { context, close } = await openBrowser({ width: 390, height: 844, mobile: true });
+    const { page, close } = await openSignedIn(PHONE, demoEmail("operator"), plinth.url);
     try {
-      const page = await context.newPage();
-      await page.goto(`${plinth.url}/login`);
-      await page.fill("#email", "operator@example.com");
-      await page.fill("#password", "demo-plinth-pass");
-      await page.click("button[type=submit]");
-      await page.waitForURL(`${plinth.url}/`);
-
       await page.getByRole("link", { name: "Logger files" }).click();
       await page.waitForURL(`${plinth.url}/uploads`);
       await expect.poll(() => page.locator("h1").textContent()).toBe("Logger files");

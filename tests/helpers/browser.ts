@@ -1,7 +1,8 @@
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { chromium, type BrowserContext } from "playwright-core";
+import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { DEMO_PASSWORD } from "./server";
 
 export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 
@@ -32,6 +33,15 @@ export interface BrowserOptions {
   height: number;
   colorScheme?: "light" | "dark";
   mobile?: boolean;
+}
+
+/** The two sizes every page is checked at: a phone (touch, 2× pixels) and a desk. */
+export const PHONE = { width: 390, height: 844, mobile: true } as const;
+export const DESK = { width: 1440, height: 900 } as const;
+
+/** The phone's size for a width under 500 px, else the desk's, at that width and scheme. */
+export function screenAt(width: number, colorScheme?: "light" | "dark"): BrowserOptions {
+  return { ...(width < 500 ? PHONE : DESK), width, colorScheme };
 }
 
 /** A fresh headless Chromium profile with the given viewport; close() removes the profile. */
@@ -65,6 +75,57 @@ export function screenshotPath(name: string): string {
 }
 
 /** Waits until every React island on the page has hydrated (Astro drops `ssr` then). */
-export async function waitForIslands(page: import("playwright-core").Page): Promise<void> {
+export async function waitForIslands(page: Page): Promise<void> {
   await page.waitForFunction(() => document.querySelectorAll("astro-island[ssr]").length === 0);
+}
+
+/**
+ * Signs in through the login form (e-mail, password, submit) and waits for the home page.
+ * A test about the sign-in page itself, or by keyboard alone, does its own steps instead.
+ */
+export async function signInPage(
+  page: Page,
+  email: string,
+  baseUrl: string,
+  password = DEMO_PASSWORD,
+): Promise<void> {
+  await page.goto(`${baseUrl}/login`);
+  await waitForIslands(page);
+  await page.fill("#email", email);
+  await page.fill("#password", password);
+  await page.click("button[type=submit]");
+  await page.waitForURL(`${baseUrl}/`);
+}
+
+/** A fresh browser at the given size with one page signed in as `email`; close() ends both. */
+export async function openSignedIn(
+  o: BrowserOptions,
+  email: string,
+  baseUrl: string,
+): Promise<{ page: Page; context: BrowserContext; close: () => Promise<void> }> {
+  const browser = await openBrowser(o);
+  try {
+    const page = await browser.context.newPage();
+    await signInPage(page, email, baseUrl);
+    return { page, ...browser };
+  } catch (err) {
+    await browser.close();
+    throw err;
+  }
+}
+
+/** Inputs, selects and text areas with no accessible name from a label or an aria attribute. */
+export function unlabelled(page: Page): Promise<string[]> {
+  return page.evaluate(() =>
+    [...document.querySelectorAll("input:not([type=hidden]), select, textarea")]
+      .filter((el) => {
+        const e = el as HTMLInputElement;
+        return (
+          !(e.labels && e.labels.length > 0) &&
+          !e.getAttribute("aria-label") &&
+          !e.getAttribute("aria-labelledby")
+        );
+      })
+      .map((el) => el.outerHTML.slice(0, 80)),
+  );
 }
