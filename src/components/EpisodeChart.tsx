@@ -1,26 +1,24 @@
-import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
-import { LineChart } from "echarts/charts";
-import {
-  GridComponent,
-  MarkAreaComponent,
-  MarkLineComponent,
-  TooltipComponent,
-} from "echarts/components";
-import * as echarts from "echarts/core";
-import { CanvasRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
+import { useQuery } from "@tanstack/react-query";
+import { MarkAreaComponent } from "echarts/components";
 import { alertValueText } from "@/domain/alerts/episodeWords";
 import type { RuleKind } from "@/domain/alerts/episode";
 import { cToF, type UnitSystem } from "@/domain/units";
+import ChartCanvas from "./chart/ChartCanvas";
+import {
+  axisTooltip,
+  chartBase,
+  echarts,
+  limitLine,
+  markLines,
+  plantTimeFormat,
+  readChartTheme,
+  timeAxis,
+  valueAxis,
+} from "./chart/echartsBase";
+import { fetchReadings, withReadingsQuery } from "./chart/readings";
 
-echarts.use([
-  LineChart,
-  GridComponent,
-  TooltipComponent,
-  MarkLineComponent,
-  MarkAreaComponent,
-  CanvasRenderer,
-]);
+// The shaded span of the episode: only this chart draws one.
+echarts.use([MarkAreaComponent]);
 
 interface Props {
   sensorId: string;
@@ -39,28 +37,8 @@ interface Props {
   timeZone: string;
 }
 
-interface Reading {
-  ts: string;
-  temp_c: number;
-  rh: number | null;
-}
-
-const queryClient = new QueryClient({
-  defaultOptions: { queries: { refetchOnWindowFocus: false, staleTime: 60_000 } },
-});
-
-export default function EpisodeChart(props: Props) {
-  return (
-    <QueryClientProvider client={queryClient}>
-      <Chart {...props} />
-    </QueryClientProvider>
-  );
-}
-
-function cssVar(name: string, fallback: string): string {
-  if (typeof window === "undefined") return fallback;
-  return getComputedStyle(document.documentElement).getPropertyValue(name).trim() || fallback;
-}
+const EpisodeChart = withReadingsQuery(Chart, 60_000);
+export default EpisodeChart;
 
 /** Which limits are a level on the chart's own axis (a rate, a silence or a battery is not). */
 function levelLimits(kind: RuleKind, threshold: number | null, thresholdHigh: number | null) {
@@ -83,13 +61,7 @@ function levelLimits(kind: RuleKind, threshold: number | null, thresholdHigh: nu
 function Chart(p: Props) {
   const query = useQuery({
     queryKey: ["episode-readings", p.sensorId, p.fromMs, p.toMs],
-    queryFn: async () => {
-      const res = await fetch(
-        `/api/v1/sensors/${encodeURIComponent(p.sensorId)}/readings?from=${p.fromMs}&to=${p.toMs}&max_points=800`,
-      );
-      if (!res.ok) throw new Error(`The server answered ${res.status}.`);
-      return ((await res.json()) as { readings: Reading[] }).readings;
-    },
+    queryFn: () => fetchReadings(p.sensorId, p.fromMs, p.toMs, 800),
   });
 
   const rh = p.kind === "rh_low";
@@ -100,25 +72,9 @@ function Chart(p: Props) {
     .map((r) => [Date.parse(r.ts), Number(level(rh ? r.rh! : r.temp_c).toFixed(2))]);
   const limits = levelLimits(p.kind, p.threshold, p.thresholdHigh);
 
-  const ink = cssVar("--c-text", "#1d1f21");
-  const muted = cssVar("--c-muted", "#55595e");
-  const line = cssVar("--c-border", "#d6d3cc");
-  const accent = cssVar("--c-accent", "#1f4f8f");
-  const alarm = cssVar("--c-alarm", "#a1121b");
-  const alarmBg = cssVar("--c-alarm-bg", "#fbe3e3");
-  const warn = cssVar("--c-warn", "#8a4b00");
-  const fmt = new Intl.DateTimeFormat("en-US", {
-    timeZone: p.timeZone,
-    hour: "numeric",
-    minute: "2-digit",
-  });
-  const fmtTip = new Intl.DateTimeFormat("en-US", {
-    timeZone: p.timeZone,
-    month: "short",
-    day: "numeric",
-    hour: "numeric",
-    minute: "2-digit",
-  });
+  const theme = readChartTheme();
+  const { alarm, warn } = theme;
+  const fmt = plantTimeFormat(p.timeZone, { hour: "numeric", minute: "2-digit" });
   const endMs = p.clearedAtMs ?? p.toMs;
   // Labels run along their lines, on either side, so moments close together stay readable.
   const moments = [
@@ -136,52 +92,34 @@ function Chart(p: Props) {
   ];
 
   const option = {
-    animation: false,
-    textStyle: { fontFamily: "Public Sans Variable, system-ui, sans-serif", color: ink },
+    ...chartBase(theme),
     grid: { left: 48, right: 16, top: 36, bottom: 36 },
-    tooltip: {
-      trigger: "axis",
-      valueFormatter: (v: number) =>
-        typeof v === "number" ? `${v.toFixed(1)} ${unit}` : String(v),
-      axisPointer: {
-        type: "line",
-        label: { formatter: (x: { value: number }) => fmtTip.format(x.value) },
-      },
-    },
-    xAxis: {
-      type: "time",
-      min: p.fromMs,
-      max: p.toMs,
-      splitNumber: 4,
-      axisLabel: { color: muted, hideOverlap: true, formatter: (v: number) => fmt.format(v) },
-      axisLine: { lineStyle: { color: line } },
-    },
-    yAxis: {
-      type: "value",
-      name: unit,
-      scale: true,
-      ...(limits.length
+    tooltip: axisTooltip(p.timeZone, (v) =>
+      typeof v === "number" ? `${v.toFixed(1)} ${unit}` : String(v),
+    ),
+    xAxis: timeAxis(theme, fmt, { splitNumber: 4, minMs: p.fromMs, maxMs: p.toMs }),
+    yAxis: valueAxis(
+      theme,
+      unit,
+      limits.length
         ? {
             min: (v: { min: number }) => Math.floor(Math.min(v.min, ...limits.map(level)) - 1),
             max: (v: { max: number }) =>
               rh ? 100 : Math.ceil(Math.max(v.max, ...limits.map(level)) + 1),
           }
-        : {}),
-      nameTextStyle: { color: muted },
-      axisLabel: { color: muted },
-      splitLine: { lineStyle: { color: line } },
-    },
+        : {},
+    ),
     series: [
       {
         name: rh ? "Humidity" : "Temperature",
         type: "line",
         showSymbol: false,
-        lineStyle: { width: 2, color: accent },
-        itemStyle: { color: accent },
+        lineStyle: { width: 2, color: theme.accent },
+        itemStyle: { color: theme.accent },
         data,
         markArea: {
           silent: true,
-          itemStyle: { color: alarmBg, opacity: 0.6 },
+          itemStyle: { color: theme.alarmBg, opacity: 0.6 },
           label: { color: alarm, fontWeight: "bold", position: "insideBottom" },
           data: [
             [
@@ -190,39 +128,27 @@ function Chart(p: Props) {
             ],
           ],
         },
-        markLine: {
-          symbol: "none",
-          silent: true,
-          data: [
-            ...limits.map((v) => ({
-              name: `limit ${alertValueText(p.kind, v, p.units)}`,
-              yAxis: level(v),
-              lineStyle: { color: alarm, type: "dashed", width: 2 },
-              label: { formatter: "{b}", color: alarm, position: "insideEndTop" },
-            })),
-            ...moments.map((m) => ({
-              name: m.name,
-              xAxis: m.xAxis,
-              lineStyle: { color: m.color, type: "dotted", width: 1.5 },
-              label: { formatter: "{b}", color: m.color, position: m.position },
-            })),
-          ],
-        },
+        markLine: markLines([
+          ...limits.map((v) =>
+            limitLine(`limit ${alertValueText(p.kind, v, p.units)}`, level(v), alarm, {
+              position: "insideEndTop",
+              width: 2,
+            }),
+          ),
+          ...moments.map((m) => ({
+            name: m.name,
+            xAxis: m.xAxis,
+            lineStyle: { color: m.color, type: "dotted", width: 1.5 },
+            label: { formatter: "{b}", color: m.color, position: m.position },
+          })),
+        ]),
       },
     ],
   };
 
   return (
     <div>
-      <div className="card p-2" data-testid="episode-chart">
-        <ReactEChartsCore
-          echarts={echarts}
-          option={option}
-          notMerge
-          style={{ height: 280, width: "100%" }}
-          opts={{ renderer: "canvas" }}
-        />
-      </div>
+      <ChartCanvas option={option} height={280} testId="episode-chart" />
       <p className="hint mt-1" role="status" aria-live="polite">
         {query.isPending
           ? "Loading readings…"

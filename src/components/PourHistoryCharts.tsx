@@ -1,27 +1,19 @@
-import { LineChart } from "echarts/charts";
-import {
-  DataZoomComponent,
-  GridComponent,
-  LegendComponent,
-  MarkLineComponent,
-  TooltipComponent,
-} from "echarts/components";
-import * as echarts from "echarts/core";
-import { CanvasRenderer } from "echarts/renderers";
-import ReactEChartsCore from "echarts-for-react/esm/core";
 import { useEffect, useMemo, useState } from "react";
 import { MOIST_CURE_MIN_RH_PCT } from "@/domain/sensorState";
 import { cToF, mpaToPsi, type UnitSystem } from "@/domain/units";
-
-echarts.use([
-  LineChart,
-  GridComponent,
-  TooltipComponent,
-  DataZoomComponent,
-  LegendComponent,
-  MarkLineComponent,
-  CanvasRenderer,
-]);
+import ChartCanvas from "./chart/ChartCanvas";
+import {
+  axisTooltip,
+  chartBase,
+  echarts,
+  limitLine,
+  markLines,
+  plantTimeFormat,
+  timeAxis,
+  valueAxis,
+} from "./chart/echartsBase";
+import { useChartTheme } from "./chart/useChartTheme";
+import { topLegend, zoomControls } from "./chart/zoomable";
 
 /** What the history page embeds for its charts (SI, epoch ms; thinned on the server). */
 export interface PourHistoryChartData {
@@ -59,11 +51,6 @@ const PALETTE = [
 ];
 const DASHES = ["solid", "dashed", "dotted"] as const;
 
-function cssVar(name: string, fallback: string): string {
-  if (typeof window === "undefined") return fallback;
-  return getComputedStyle(document.documentElement).getPropertyValue(name).trim() || fallback;
-}
-
 function readData(id: string): PourHistoryChartData | null {
   const el = document.getElementById(id);
   if (!el?.textContent) return null;
@@ -72,27 +59,6 @@ function readData(id: string): PourHistoryChartData | null {
   } catch {
     return null;
   }
-}
-
-/** Follows the page's theme (the switch, or the system's dark mode) so the canvas matches. */
-function useThemeKey(): string {
-  const [key, setKey] = useState("");
-  useEffect(() => {
-    const read = () =>
-      setKey(
-        `${document.documentElement.dataset.theme ?? ""}-${window.matchMedia("(prefers-color-scheme: dark)").matches}`,
-      );
-    read();
-    const mq = window.matchMedia("(prefers-color-scheme: dark)");
-    mq.addEventListener("change", read);
-    const obs = new MutationObserver(read);
-    obs.observe(document.documentElement, { attributes: true, attributeFilter: ["data-theme"] });
-    return () => {
-      mq.removeEventListener("change", read);
-      obs.disconnect();
-    };
-  }, []);
-  return key;
 }
 
 function useNarrow(): boolean {
@@ -107,19 +73,26 @@ function useNarrow(): boolean {
   return narrow;
 }
 
+/**
+ * A value axis from zero tall enough for `top` (with a little headroom), on a round step of
+ * 1, 2 or 5 times a power of ten with about five steps, as ECharts would pick for the data.
+ */
+function roomFor(top: number): { max: number; interval: number } | object {
+  if (!(top > 0) || !Number.isFinite(top)) return {};
+  const want = (top * 1.05) / 5;
+  const magnitude = 10 ** Math.floor(Math.log10(want));
+  const interval = ([1, 2, 5, 10].find((m) => m * magnitude >= want) ?? 10) * magnitude;
+  return { max: Math.ceil((top * 1.05) / interval) * interval, interval };
+}
+
 export default function PourHistoryCharts({ dataId }: Props) {
   const [data] = useState(() => readData(dataId));
-  const themeKey = useThemeKey();
+  const theme = useChartTheme();
   const narrow = useNarrow();
 
   const options = useMemo(() => {
     if (!data) return null;
-    const ink = cssVar("--c-text", "#1d1f21");
-    const muted = cssVar("--c-muted", "#55595e");
-    const line = cssVar("--c-border", "#d6d3cc");
-    const warn = cssVar("--c-warn", "#8a4b00");
-    const alarm = cssVar("--c-alarm", "#a1121b");
-    const accent = cssVar("--c-accent", "#1f4f8f");
+    const { ink, warn, alarm, accent } = theme;
     const us = data.units === "us";
     const tempUnit = us ? "°F" : "°C";
     const strengthUnit = us ? "psi" : "MPa";
@@ -128,63 +101,61 @@ export default function PourHistoryCharts({ dataId }: Props) {
     const s = (mpa: number) => (us ? Math.round(mpaToPsi(mpa)) : Number(mpa.toFixed(2)));
     const ttf = (v: number) => Math.round(us ? v * 1.8 : v);
     const spanH = (data.endMs - data.castAtMs) / 3_600_000;
-    const fmtAxis = new Intl.DateTimeFormat(
-      "en-US",
+    const fmtAxis = plantTimeFormat(
+      data.timeZone,
       spanH <= 36
-        ? { timeZone: data.timeZone, hour: "numeric", minute: "2-digit" }
-        : { timeZone: data.timeZone, month: "short", day: "numeric", hour: "numeric" },
+        ? { hour: "numeric", minute: "2-digit" }
+        : { month: "short", day: "numeric", hour: "numeric" },
     );
-    const fmtTip = new Intl.DateTimeFormat("en-US", {
-      timeZone: data.timeZone,
-      month: "short",
-      day: "numeric",
-      hour: "numeric",
-      minute: "2-digit",
-    });
     const styleOf = (i: number) => ({
       color: PALETTE[i % PALETTE.length]!,
       type: DASHES[Math.floor(i / PALETTE.length) % DASHES.length]!,
     });
+    /** The i-th sensor's line, in its own colour and dash on every chart. */
+    const sensorLine = (
+      name: string,
+      i: number,
+      points: unknown[],
+      line: { width: number; opacity?: number } = { width: 1.5 },
+    ) => ({
+      name,
+      type: "line",
+      showSymbol: false,
+      lineStyle: { ...line, ...styleOf(i) },
+      itemStyle: { color: styleOf(i).color },
+      data: points,
+    });
+    /** The governing (weakest) sensor's line, drawn over the others: decisions follow it. */
+    const governingLine = (points: unknown[], markLine: object | undefined) => ({
+      name: "Governing (weakest)",
+      type: "line",
+      showSymbol: false,
+      z: 5,
+      lineStyle: { width: 3, color: ink },
+      itemStyle: { color: ink },
+      data: points,
+      markLine,
+    });
 
     const base = (yName: string) => ({
-      animation: false,
-      textStyle: { fontFamily: "Public Sans Variable, system-ui, sans-serif", color: ink },
+      ...chartBase(theme),
       grid: { left: narrow ? 44 : 56, right: narrow ? 12 : 24, top: narrow ? 64 : 48, bottom: 64 },
-      legend: { type: "scroll", top: 0, textStyle: { color: ink }, pageTextStyle: { color: ink } },
-      tooltip: {
-        trigger: "axis",
-        confine: true,
-        valueFormatter: (v: unknown) => (typeof v === "number" ? v.toLocaleString("en-US") : "—"),
-        axisPointer: {
-          type: "line",
-          label: { formatter: (p: { value: number }) => fmtTip.format(p.value) },
-        },
-      },
-      xAxis: {
-        type: "time",
-        min: data.castAtMs,
-        max: data.endMs,
-        axisLabel: {
-          color: muted,
-          hideOverlap: true,
-          formatter: (v: number) => fmtAxis.format(v),
-        },
+      legend: topLegend(theme, { scroll: true }),
+      tooltip: axisTooltip(
+        data.timeZone,
+        (v: unknown) => (typeof v === "number" ? v.toLocaleString("en-US") : "—"),
+        { confine: true },
+      ),
+      xAxis: timeAxis(theme, fmtAxis, {
         splitNumber: narrow ? 3 : 6,
-        axisLine: { lineStyle: { color: line } },
-      },
-      yAxis: {
-        type: "value",
-        // On a phone the caption names the unit, leaving the space above the plot to the labels.
-        name: narrow ? "" : yName,
-        scale: true,
-        nameTextStyle: { color: muted, align: "left" },
-        axisLabel: { color: muted },
-        splitLine: { lineStyle: { color: line } },
-      },
-      dataZoom: [
-        { type: "inside" },
-        { type: "slider", height: 22, bottom: 10, textStyle: { color: muted }, labelFormatter: "" },
-      ],
+        minMs: data.castAtMs,
+        maxMs: data.endMs,
+      }),
+      // On a phone the caption names the unit, leaving the space above the plot to the labels.
+      yAxis: valueAxis(theme, narrow ? "" : yName, {
+        nameTextStyle: { color: theme.muted, align: "left" },
+      }),
+      dataZoom: zoomControls(theme, { bottom: 10, hideLabels: true }),
     });
 
     const releaseMarks = data.releases.map((r) => ({
@@ -202,14 +173,13 @@ export default function PourHistoryCharts({ dataId }: Props) {
 
     const temperature = {
       ...base(tempUnit),
-      series: data.sensors.map((x, i) => ({
-        name: x.sensor,
-        type: "line",
-        showSymbol: false,
-        lineStyle: { width: 1.5, ...styleOf(i) },
-        itemStyle: { color: styleOf(i).color },
-        data: x.temps.tsMs.map((ts, k) => [ts, t(x.temps.tempC[k]!)]),
-      })),
+      series: data.sensors.map((x, i) =>
+        sensorLine(
+          x.sensor,
+          i,
+          x.temps.tsMs.map((ts, k) => [ts, t(x.temps.tempC[k]!)]),
+        ),
+      ),
     };
 
     const withRh = data.sensors
@@ -226,105 +196,89 @@ export default function PourHistoryCharts({ dataId }: Props) {
           // Keep the moist-cure level in view, and room below it to see a bag drying out.
           yAxis: { ...base("% RH").yAxis, scale: false, min: rhMin, max: 100, interval: rhStep },
           series: withRh.map(({ x, i }, n) => ({
-            name: x.sensor,
-            type: "line",
-            showSymbol: false,
-            lineStyle: { width: 1.5, ...styleOf(i) },
-            itemStyle: { color: styleOf(i).color },
-            data: x.temps.tsMs.flatMap((ts, k) =>
-              x.temps.rhPct[k] === null ? [] : [[ts, x.temps.rhPct[k]]],
+            ...sensorLine(
+              x.sensor,
+              i,
+              x.temps.tsMs.flatMap((ts, k) =>
+                x.temps.rhPct[k] === null ? [] : [[ts, x.temps.rhPct[k]]],
+              ),
             ),
             markLine:
               n === 0
-                ? {
-                    symbol: "none",
-                    silent: true,
-                    label: { formatter: "{b}", color: warn, position: "insideStartTop" },
-                    lineStyle: { color: warn, type: "dashed" },
-                    data: [
-                      {
-                        name: `moist cure ≥ ${MOIST_CURE_MIN_RH_PCT} %`,
-                        yAxis: MOIST_CURE_MIN_RH_PCT,
-                      },
-                    ],
-                  }
+                ? markLines([
+                    limitLine(
+                      `moist cure ≥ ${MOIST_CURE_MIN_RH_PCT} %`,
+                      MOIST_CURE_MIN_RH_PCT,
+                      warn,
+                      { position: "insideStartTop" },
+                    ),
+                  ])
                 : undefined,
           })),
         }
       : null;
 
-    const governingName = "Governing (weakest)";
+    // Strength (or, for a mix not calibrated, the temperature-time factor) from zero up.
+    const fromZero = (yName: string, series: object[], axis: object = {}) => ({
+      ...base(yName),
+      yAxis: { ...base(yName).yAxis, scale: false, min: 0, ...axis },
+      series,
+    });
     const strength = data.calibrated
-      ? {
-          ...base(strengthUnit),
-          yAxis: { ...base(strengthUnit).yAxis, scale: false, min: 0 },
-          series: [
-            ...data.sensors.map((x, i) => ({
-              name: x.sensor,
-              type: "line",
-              showSymbol: false,
-              lineStyle: { width: 1, opacity: 0.8, ...styleOf(i) },
-              itemStyle: { color: styleOf(i).color },
-              data: x.maturity.tsMs.map((ts, k) => [ts, s(x.maturity.strengthMpa[k] ?? 0)]),
-            })),
-            {
-              name: governingName,
-              type: "line",
-              showSymbol: false,
-              z: 5,
-              lineStyle: { width: 3, color: ink },
-              itemStyle: { color: ink },
-              data: data.governing.tsMs.map((ts, k) => [ts, s(data.governing.strengthMpa[k] ?? 0)]),
-              markLine: {
-                symbol: "none",
-                silent: true,
-                data: [
-                  {
-                    name: `strip ${s(data.stripMpa).toLocaleString("en-US")} ${strengthUnit}`,
-                    yAxis: s(data.stripMpa),
-                    lineStyle: { color: warn, type: "dashed", width: 2 },
-                    label: { formatter: "{b}", color: warn, position: "insideMiddleTop" },
-                  },
-                  {
-                    name: `ship ${s(data.shipMpa).toLocaleString("en-US")} ${strengthUnit}`,
-                    yAxis: s(data.shipMpa),
-                    lineStyle: { color: alarm, type: "dashed", width: 2 },
-                    label: { formatter: "{b}", color: alarm, position: "insideMiddleTop" },
-                  },
-                  ...releaseMarks,
-                ],
-              },
-            },
+      ? fromZero(
+          strengthUnit,
+          [
+            ...data.sensors.map((x, i) =>
+              sensorLine(
+                x.sensor,
+                i,
+                x.maturity.tsMs.map((ts, k) => [ts, s(x.maturity.strengthMpa[k] ?? 0)]),
+                { width: 1, opacity: 0.8 },
+              ),
+            ),
+            governingLine(
+              data.governing.tsMs.map((ts, k) => [ts, s(data.governing.strengthMpa[k] ?? 0)]),
+              markLines([
+                limitLine(
+                  `strip ${s(data.stripMpa).toLocaleString("en-US")} ${strengthUnit}`,
+                  s(data.stripMpa),
+                  warn,
+                  { position: "insideMiddleTop", width: 2 },
+                ),
+                limitLine(
+                  `ship ${s(data.shipMpa).toLocaleString("en-US")} ${strengthUnit}`,
+                  s(data.shipMpa),
+                  alarm,
+                  { position: "insideMiddleTop", width: 2 },
+                ),
+                ...releaseMarks,
+              ]),
+            ),
           ],
-        }
-      : {
-          ...base(ttfUnit),
-          yAxis: { ...base(ttfUnit).yAxis, scale: false, min: 0 },
-          series: [
-            ...data.sensors.map((x, i) => ({
-              name: x.sensor,
-              type: "line",
-              showSymbol: false,
-              lineStyle: { width: 1.5, ...styleOf(i) },
-              itemStyle: { color: styleOf(i).color },
-              data: x.maturity.tsMs.map((ts, k) => [ts, ttf(x.maturity.ttfCH[k]!)]),
-            })),
-            {
-              name: governingName,
-              type: "line",
-              showSymbol: false,
-              z: 5,
-              lineStyle: { width: 3, color: ink },
-              itemStyle: { color: ink },
-              data: data.governing.tsMs.map((ts, k) => [ts, ttf(data.governing.ttfCH[k]!)]),
-              markLine: releaseMarks.length
-                ? { symbol: "none", silent: true, data: releaseMarks }
-                : undefined,
-            },
-          ],
-        };
-    return { temperature, humidity, strength, tempUnit, strengthUnit, ttfUnit, themeKey };
-  }, [data, themeKey, narrow]);
+          // A dashed level does not stretch the axis: make room for the ship strength.
+          roomFor(
+            [data.governing.strengthMpa, ...data.sensors.map((x) => x.maturity.strengthMpa)].reduce(
+              (top, values) =>
+                values.reduce<number>((t, v) => (v === null ? t : Math.max(t, s(v))), top),
+              Math.max(s(data.shipMpa), s(data.stripMpa)),
+            ),
+          ),
+        )
+      : fromZero(ttfUnit, [
+          ...data.sensors.map((x, i) =>
+            sensorLine(
+              x.sensor,
+              i,
+              x.maturity.tsMs.map((ts, k) => [ts, ttf(x.maturity.ttfCH[k]!)]),
+            ),
+          ),
+          governingLine(
+            data.governing.tsMs.map((ts, k) => [ts, ttf(data.governing.ttfCH[k]!)]),
+            releaseMarks.length ? markLines(releaseMarks) : undefined,
+          ),
+        ]);
+    return { temperature, humidity, strength, tempUnit, strengthUnit, ttfUnit };
+  }, [data, theme, narrow]);
 
   if (!data || !options) {
     return (
@@ -335,20 +289,16 @@ export default function PourHistoryCharts({ dataId }: Props) {
   }
   const height = narrow ? 280 : 340;
   const chart = (option: object, testId: string) => (
-    <div className="card p-2" data-testid={testId}>
-      <ReactEChartsCore
-        echarts={echarts}
-        option={option}
-        notMerge
-        style={{ height, width: "100%" }}
-        opts={{ renderer: "canvas" }}
-        onChartReady={(instance: echarts.ECharts) => {
-          // Zooming one chart zooms the others: the same stretch of the cure, three ways.
-          instance.group = GROUP;
-          echarts.connect(GROUP);
-        }}
-      />
-    </div>
+    <ChartCanvas
+      option={option}
+      height={height}
+      testId={testId}
+      onChartReady={(instance) => {
+        // Zooming one chart zooms the others: the same stretch of the cure, three ways.
+        instance.group = GROUP;
+        echarts.connect(GROUP);
+      }}
+    />
   );
   return (
     <div className="grid gap-6">

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import {
+  episodeChartWindow,
   alertLimitText,
   alertValueText,
   alertWhatText,
@@ -146,5 +147,23 @@ describe("words and marks", () => {
     expect(noticeReasonText("first")).toBe("First notice");
     expect(noticeReasonText("escalate")).toBe("Escalation: not acknowledged");
     expect(noticeReasonText("cleared")).toBe("Cleared by itself");
+  });
+});
+
+describe("the window an episode's chart shows", () => {
+  const H = 3_600_000;
+  it("keeps two hours each side of a short spell, and half the length of a long one", () => {
+    expect(episodeChartWindow(10 * H, 11 * H, 20 * H)).toEqual({ fromMs: 8 * H, toMs: 13 * H });
+    expect(episodeChartWindow(10 * H, 20 * H, 40 * H)).toEqual({ fromMs: 5 * H, toMs: 25 * H });
+    // Still going: the window ends now.
+    expect(episodeChartWindow(10 * H, 30 * H, 30 * H).toMs).toBe(30 * H);
+  });
+
+  it("asks for whole milliseconds when a long spell lasted an odd number of them", () => {
+    // A spell of 5 h and 1 ms: half of it is not a whole millisecond.
+    const w = episodeChartWindow(10 * H, 15 * H + 1, 40 * H);
+    expect(Number.isInteger(w.fromMs) && Number.isInteger(w.toMs)).toBe(true);
+    expect(w.fromMs).toBeLessThanOrEqual(10 * H - 2.5 * H);
+    expect(w.toMs).toBeGreaterThanOrEqual(15 * H + 1 + 2.5 * H);
   });
 });

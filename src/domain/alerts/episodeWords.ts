@@ -240,3 +240,21 @@ export function chartedQuantity(kind: RuleKind): "temp" | "rh" | null {
       return "temp";
   }
 }
+
+/**
+ * The window an episode's chart shows: from before it started to after it ended (now, while
+ * it lasts, never past now), a margin of half its length and at least two hours on each side,
+ * so the readings on either side of the spell show too. Whole epoch milliseconds: the readings
+ * endpoint takes no fractions.
+ */
+export function episodeChartWindow(
+  startedAtMs: number,
+  endMs: number,
+  nowMs: number,
+): { fromMs: number; toMs: number } {
+  const marginMs = Math.max(2 * 3_600_000, Math.round((endMs - startedAtMs) / 2));
+  return {
+    fromMs: Math.round(startedAtMs) - marginMs,
+    toMs: Math.round(Math.min(nowMs, endMs + marginMs)),
+  };
+}
