@@ -4,7 +4,8 @@ import { useForm } from "react-hook-form";
 import { z } from "zod";
 import { readProblem } from "@/lib/format";
 import { emailField, nameField, newPasswordField, phoneField } from "@/lib/schemas/users";
-import Field from "./Field";
+import { SelectField, SubmitButton, TextField } from "./Field";
+import { Banner, type Notice } from "./Notice";
 
 interface Props {
   me: {
@@ -43,23 +44,10 @@ const passwordForm = z
   });
 type PasswordForm = z.input<typeof passwordForm>;
 
-function Banner({ tone, text }: { tone: "ok" | "error"; text: string }) {
-  return (
-    <p
-      role={tone === "error" ? "alert" : "status"}
-      className={`rounded-md px-3 py-2 text-sm font-semibold ${tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg text-ok"}`}
-    >
-      {text}
-    </p>
-  );
-}
-
 /** One's own account: profile, units, theme, alert channels, and password. */
 export default function AccountForms({ me, mustChangePassword }: Props) {
-  const [profileMsg, setProfileMsg] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
-  const [passwordMsg, setPasswordMsg] = useState<{ tone: "ok" | "error"; text: string } | null>(
-    null,
-  );
+  const [profileMsg, setProfileMsg] = useState<Notice | null>(null);
+  const [passwordMsg, setPasswordMsg] = useState<Notice | null>(null);
   const profile = useForm<ProfileForm, unknown, ProfileValues>({
     resolver: zodResolver(profileForm),
     defaultValues: {
@@ -126,7 +114,6 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
     if (mustChangePassword) window.location.assign("/");
   }
 
-  const invalid = (e: unknown) => (e ? true : undefined);
   const [phoneNow, smsOn, emailOn] = profile.watch(["phone", "notify_sms", "notify_email"]);
   const channelWarning =
     !smsOn && !emailOn
@@ -151,56 +138,35 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
           noValidate
         >
           {passwordMsg && <Banner {...passwordMsg} />}
-          <Field
+          <TextField
             id="current_password"
             label="Current password"
             error={we.current_password?.message}
-          >
-            <input
-              id="current_password"
-              type="password"
-              className="input"
-              autoComplete="current-password"
-              aria-invalid={invalid(we.current_password)}
-              aria-describedby={we.current_password ? "current_password-err" : undefined}
-              {...password.register("current_password")}
-            />
-          </Field>
-          <Field
+            type="password"
+            autoComplete="current-password"
+            {...password.register("current_password")}
+          />
+          <TextField
             id="new_password"
             label="New password"
             hint="At least 10 characters. A short sentence is easy to type on a phone."
             error={we.new_password?.message}
-          >
-            <input
-              id="new_password"
-              type="password"
-              className="input"
-              autoComplete="new-password"
-              aria-invalid={invalid(we.new_password)}
-              aria-describedby={we.new_password ? "new_password-err" : undefined}
-              {...password.register("new_password")}
-            />
-          </Field>
-          <Field id="confirm" label="New password again" error={we.confirm?.message}>
-            <input
-              id="confirm"
-              type="password"
-              className="input"
-              autoComplete="new-password"
-              aria-invalid={invalid(we.confirm)}
-              aria-describedby={we.confirm ? "confirm-err" : undefined}
-              {...password.register("confirm")}
-            />
-          </Field>
+            type="password"
+            autoComplete="new-password"
+            {...password.register("new_password")}
+          />
+          <TextField
+            id="confirm"
+            label="New password again"
+            error={we.confirm?.message}
+            type="password"
+            autoComplete="new-password"
+            {...password.register("confirm")}
+          />
           <div>
-            <button
-              type="submit"
-              className="btn btn-primary"
-              disabled={password.formState.isSubmitting}
-            >
-              {password.formState.isSubmitting ? "Changing…" : "Change password"}
-            </button>
+            <SubmitButton busy={password.formState.isSubmitting} busyLabel="Changing…">
+              Change password
+            </SubmitButton>
           </div>
         </form>
       </section>
@@ -211,43 +177,30 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
         </h2>
         <form className="mt-3 grid gap-4" onSubmit={profile.handleSubmit(saveProfile)} noValidate>
           {profileMsg && <Banner {...profileMsg} />}
-          <Field id="name" label="Name" error={pe.name?.message}>
-            <input
-              id="name"
-              className="input"
-              autoComplete="name"
-              aria-invalid={invalid(pe.name)}
-              aria-describedby={pe.name ? "name-err" : undefined}
-              {...profile.register("name")}
-            />
-          </Field>
-          <Field id="email" label="E-mail (your sign-in name)" error={pe.email?.message}>
-            <input
-              id="email"
-              type="email"
-              className="input"
-              autoComplete="email"
-              aria-invalid={invalid(pe.email)}
-              aria-describedby={pe.email ? "email-err" : undefined}
-              {...profile.register("email")}
-            />
-          </Field>
-          <Field
+          <TextField
+            id="name"
+            label="Name"
+            error={pe.name?.message}
+            autoComplete="name"
+            {...profile.register("name")}
+          />
+          <TextField
+            id="email"
+            label="E-mail (your sign-in name)"
+            error={pe.email?.message}
+            type="email"
+            autoComplete="email"
+            {...profile.register("email")}
+          />
+          <TextField
             id="phone"
             label="Mobile phone for alert texts"
             hint="International form: + and country code, 8 to 15 digits, e.g. +1 555 010 0123. Leave empty for no texts."
             error={pe.phone?.message}
-          >
-            <input
-              id="phone"
-              type="tel"
-              className="input"
-              autoComplete="tel"
-              aria-invalid={invalid(pe.phone)}
-              aria-describedby={pe.phone ? "phone-err" : undefined}
-              {...profile.register("phone")}
-            />
-          </Field>
+            type="tel"
+            autoComplete="tel"
+            {...profile.register("phone")}
+          />
           <fieldset className="grid gap-2">
             <legend className="label">Alerts reach me by</legend>
             <label className="flex min-h-11 items-center gap-3">
@@ -272,36 +225,21 @@ export default function AccountForms({ me, mustChangePassword }: Props) {
                 </span>
               </span>
             </label>
-            {channelWarning && (
-              <p
-                className="rounded-md bg-warn-bg px-3 py-2 text-sm font-semibold text-warn"
-                role="status"
-              >
-                {channelWarning}
-              </p>
-            )}
+            {channelWarning && <Banner tone="warn" text={channelWarning} />}
           </fieldset>
-          <Field id="units" label="Units">
-            <select id="units" className="input" {...profile.register("units")}>
-              <option value="us">°F and psi</option>
-              <option value="si">°C and MPa</option>
-            </select>
-          </Field>
-          <Field id="theme" label="Theme">
-            <select id="theme" className="input" {...profile.register("theme")}>
-              <option value="system">Follow this device</option>
-              <option value="light">Light</option>
-              <option value="dark">Dark (night shift)</option>
-            </select>
-          </Field>
+          <SelectField id="units" label="Units" {...profile.register("units")}>
+            <option value="us">°F and psi</option>
+            <option value="si">°C and MPa</option>
+          </SelectField>
+          <SelectField id="theme" label="Theme" {...profile.register("theme")}>
+            <option value="system">Follow this device</option>
+            <option value="light">Light</option>
+            <option value="dark">Dark (night shift)</option>
+          </SelectField>
           <div>
-            <button
-              type="submit"
-              className="btn btn-primary"
-              disabled={profile.formState.isSubmitting}
-            >
-              {profile.formState.isSubmitting ? "Saving…" : "Save"}
-            </button>
+            <SubmitButton busy={profile.formState.isSubmitting} busyLabel="Saving…">
+              Save
+            </SubmitButton>
           </div>
         </form>
       </section>

@@ -20,6 +20,7 @@ import {
   type AlertItem,
   type RuleLimits,
 } from "./AlertParts";
+import { SelectField, TextField } from "./Field";
 
 /** The history's filters, as the page's query string holds them. */
 export interface AlertFilters {
@@ -218,6 +219,7 @@ function Alerts({
   const when = (iso: string) => formatDateTime(Date.parse(iso), timeZone, "short");
   const set = <K extends keyof AlertFilters>(k: K, v: AlertFilters[K]) =>
     setFilters((f) => ({ ...f, [k]: v }));
+  const cardProps = { limits, units, nowMs: now, when, onAck: acknowledged };
 
   return (
     <div className="grid gap-8">
@@ -263,46 +265,24 @@ function Alerts({
               ` ${inHand.length} acknowledged ${inHand.length === 1 ? "alert is" : "alerts are"} not yet cleared.`}
           </p>
         )}
-        <ul
-          className="grid gap-3 lg:grid-cols-2"
-          aria-label="Open alerts"
-          data-testid="open-alerts"
-        >
-          {open.map((e) => (
-            <AlertCard
-              key={e.id}
-              e={e}
-              limits={limits}
-              units={units}
-              nowMs={now}
-              when={when}
-              canAck={canAck}
-              onAck={acknowledged}
-              onConflict={() => void qc.invalidateQueries({ queryKey: ["alerts"] })}
-            />
-          ))}
-        </ul>
+        <AlertCards
+          label="Open alerts"
+          testId="open-alerts"
+          items={open}
+          canAck={canAck}
+          onConflict={() => void qc.invalidateQueries({ queryKey: ["alerts"] })}
+          {...cardProps}
+        />
         {inHand.length > 0 && (
           <>
             <h3 className="mt-6 mb-2 text-lg font-bold">Acknowledged, not yet cleared</h3>
-            <ul
-              className="grid gap-3 lg:grid-cols-2"
-              aria-label="Acknowledged alerts not yet cleared"
-              data-testid="acknowledged-alerts"
-            >
-              {inHand.map((e) => (
-                <AlertCard
-                  key={e.id}
-                  e={e}
-                  limits={limits}
-                  units={units}
-                  nowMs={now}
-                  when={when}
-                  canAck={false}
-                  onAck={acknowledged}
-                />
-              ))}
-            </ul>
+            <AlertCards
+              label="Acknowledged alerts not yet cleared"
+              testId="acknowledged-alerts"
+              items={inHand}
+              canAck={false}
+              {...cardProps}
+            />
           </>
         )}
         {!canAck && open.length > 0 && (
@@ -321,83 +301,68 @@ function Alerts({
           aria-label="Filter the history"
           onSubmit={(e) => e.preventDefault()}
         >
-          <div className="field">
-            <label htmlFor="f-state">State</label>
-            <select
-              id="f-state"
-              className="input"
-              value={filters.state}
-              onChange={(e) => set("state", e.target.value as AlertFilters["state"])}
-            >
-              <option value="">Any</option>
-              <option value="active">Not yet cleared</option>
-              <option value="open">{stateLook.open.word}</option>
-              <option value="acknowledged">{stateLook.acknowledged.word}</option>
-              <option value="cleared">{stateLook.cleared.word}</option>
-            </select>
-          </div>
-          <div className="field">
-            <label htmlFor="f-severity">Severity</label>
-            <select
-              id="f-severity"
-              className="input"
-              value={filters.severity}
-              onChange={(e) => set("severity", e.target.value as AlertFilters["severity"])}
-            >
-              <option value="">Any</option>
-              <option value="critical">Critical</option>
-              <option value="warning">Warning</option>
-              <option value="info">Note</option>
-            </select>
-          </div>
-          <div className="field">
-            <label htmlFor="f-sensor">Sensor</label>
-            <select
-              id="f-sensor"
-              className="input"
-              value={filters.sensor}
-              onChange={(e) => set("sensor", e.target.value)}
-            >
-              <option value="">Any</option>
-              {filters.sensor && !sensors.some((s) => s.id === filters.sensor) && (
-                <option value={filters.sensor}>{filters.sensor}</option>
-              )}
-              {sensors.map((s) => (
-                <option key={s.id} value={s.id}>
-                  {s.label ? `${s.id} · ${s.label}` : s.id}
-                </option>
-              ))}
-            </select>
-          </div>
-          <div className="field">
-            <label htmlFor="f-pour">Pour</label>
-            <select
-              id="f-pour"
-              className="input"
-              value={filters.pour_id}
-              onChange={(e) => set("pour_id", e.target.value)}
-            >
-              <option value="">Any</option>
-              {filters.pour_id && !pours.some((p) => String(p.id) === filters.pour_id) && (
-                <option value={filters.pour_id}>Pour {filters.pour_id}</option>
-              )}
-              {pours.map((p) => (
-                <option key={p.id} value={String(p.id)}>
-                  {p.code}
-                </option>
-              ))}
-            </select>
-          </div>
-          <div className="field">
-            <label htmlFor="f-since">Opened on or after</label>
-            <input
-              id="f-since"
-              type="date"
-              className="input"
-              value={filters.since}
-              onChange={(e) => set("since", e.target.value)}
-            />
-          </div>
+          <SelectField
+            id="f-state"
+            label="State"
+            value={filters.state}
+            onChange={(e) => set("state", e.target.value as AlertFilters["state"])}
+          >
+            <option value="">Any</option>
+            <option value="active">Not yet cleared</option>
+            <option value="open">{stateLook.open.word}</option>
+            <option value="acknowledged">{stateLook.acknowledged.word}</option>
+            <option value="cleared">{stateLook.cleared.word}</option>
+          </SelectField>
+          <SelectField
+            id="f-severity"
+            label="Severity"
+            value={filters.severity}
+            onChange={(e) => set("severity", e.target.value as AlertFilters["severity"])}
+          >
+            <option value="">Any</option>
+            <option value="critical">Critical</option>
+            <option value="warning">Warning</option>
+            <option value="info">Note</option>
+          </SelectField>
+          <SelectField
+            id="f-sensor"
+            label="Sensor"
+            value={filters.sensor}
+            onChange={(e) => set("sensor", e.target.value)}
+          >
+            <option value="">Any</option>
+            {filters.sensor && !sensors.some((s) => s.id === filters.sensor) && (
+              <option value={filters.sensor}>{filters.sensor}</option>
+            )}
+            {sensors.map((s) => (
+              <option key={s.id} value={s.id}>
+                {s.label ? `${s.id} · ${s.label}` : s.id}
+              </option>
+            ))}
+          </SelectField>
+          <SelectField
+            id="f-pour"
+            label="Pour"
+            value={filters.pour_id}
+            onChange={(e) => set("pour_id", e.target.value)}
+          >
+            <option value="">Any</option>
+            {filters.pour_id && !pours.some((p) => String(p.id) === filters.pour_id) && (
+              <option value={filters.pour_id}>Pour {filters.pour_id}</option>
+            )}
+            {pours.map((p) => (
+              <option key={p.id} value={String(p.id)}>
+                {p.code}
+              </option>
+            ))}
+          </SelectField>
+          <TextField
+            id="f-since"
+            label="Opened on or after"
+            type="date"
+            value={filters.since}
+            onChange={(e) => set("since", e.target.value)}
+          />
           <div className="flex items-end">
             <button
               type="button"
@@ -448,6 +413,32 @@ const band = {
   info: "border-l-accent",
 } as const;
 
+type CardProps = {
+  limits: RuleLimits;
+  units: UnitSystem;
+  nowMs: number;
+  when: (iso: string) => string;
+  canAck: boolean;
+  onAck: (item: AlertItem) => void;
+  onConflict?: () => void;
+};
+
+/** One list of alert cards, two abreast on a desk. */
+function AlertCards({
+  label,
+  testId,
+  items,
+  ...card
+}: CardProps & { label: string; testId: string; items: AlertItem[] }) {
+  return (
+    <ul className="grid gap-3 lg:grid-cols-2" aria-label={label} data-testid={testId}>
+      {items.map((e) => (
+        <AlertCard key={e.id} e={e} {...card} />
+      ))}
+    </ul>
+  );
+}
+
 function AlertCard({
   e,
   limits,
@@ -457,16 +448,7 @@ function AlertCard({
   canAck,
   onAck,
   onConflict,
-}: {
-  e: AlertItem;
-  limits: RuleLimits;
-  units: UnitSystem;
-  nowMs: number;
-  when: (iso: string) => string;
-  canAck: boolean;
-  onAck: (item: AlertItem) => void;
-  onConflict?: () => void;
-}) {
+}: CardProps & { e: AlertItem }) {
   const startedMs = Date.parse(e.started_at);
   const worst = whatOf(e, limits, units, "worst");
   const now = whatOf(e, limits, units, "last");

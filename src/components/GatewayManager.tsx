@@ -5,6 +5,9 @@ import { z } from "zod";
 import { roleLabels, roles, type Role } from "@/lib/access";
 import { formatDateTime, readProblem } from "@/lib/format";
 import { gatewayNameField, tokenNameField } from "@/lib/schemas/keys";
+import Field, { SelectField, SubmitButton } from "./Field";
+import { NoticeCard, type Notice } from "./Notice";
+import TableHead from "./TableHead";
 
 /** A gateway as GET /api/v1/gateways lists it. */
 export interface GatewayItem {
@@ -253,33 +256,18 @@ function KeyList<T extends GatewayItem>({
       </ul>
       <table className="hidden w-full text-left text-sm md:table">
         <caption className="sr-only">{caption}</caption>
-        <thead className="border-b border-line text-muted">
-          <tr>
-            <th scope="col" className="px-4 py-3">
-              Name
-            </th>
-            {extraHead && (
-              <th scope="col" className="px-4 py-3">
-                {extraHead}
-              </th>
-            )}
-            <th scope="col" className="px-4 py-3">
-              Key
-            </th>
-            <th scope="col" className="px-4 py-3">
-              Created
-            </th>
-            <th scope="col" className="px-4 py-3">
-              Last used
-            </th>
-            <th scope="col" className="px-4 py-3">
-              State
-            </th>
-            <th scope="col" className="px-4 py-3">
-              <span className="sr-only">Actions</span>
-            </th>
-          </tr>
-        </thead>
+        <TableHead
+          cell="px-4 py-3"
+          columns={[
+            "Name",
+            extraHead ?? false,
+            "Key",
+            "Created",
+            "Last used",
+            "State",
+            { label: "Actions", srOnly: true },
+          ]}
+        />
         <tbody>
           {items.map((t) => (
             <tr
@@ -310,7 +298,7 @@ export default function GatewayManager({ initialGateways, initialTokens, timeZon
   const [gateways, setGateways] = useState(initialGateways);
   const [tokens, setTokens] = useState(initialTokens);
   const [fresh, setFresh] = useState<Fresh | null>(null);
-  const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [busy, setBusy] = useState<number | null>(null);
   const origin = typeof window === "undefined" ? "" : window.location.origin;
 
@@ -388,12 +376,9 @@ export default function GatewayManager({ initialGateways, initialTokens, timeZon
         <FreshKey fresh={fresh} origin={origin} mqtt={mqtt} onDismiss={() => setFresh(null)} />
       )}
       {notice && (
-        <p
-          role={notice.tone === "error" ? "alert" : "status"}
-          className={`card p-4 font-semibold ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg"}`}
-        >
-          {notice.text}
-        </p>
+        <NoticeCard tone={notice.tone}>
+          <p className="font-semibold">{notice.text}</p>
+        </NoticeCard>
       )}
 
       <section aria-labelledby="gw-h" className="card">
@@ -427,8 +412,13 @@ export default function GatewayManager({ initialGateways, initialTokens, timeZon
           onSubmit={gForm.handleSubmit(addGateway)}
           noValidate
         >
-          <div className="field">
-            <label htmlFor="gw-name">New gateway's name</label>
+          <Field
+            id="gw-name"
+            label="New gateway's name"
+            hint="Letters, digits, dots, underscores and dashes; it is also the gateway's MQTT user name."
+            hintId="gw-name-hint"
+            error={ge.name?.message}
+          >
             <div className="flex flex-wrap gap-3">
               <input
                 id="gw-name"
@@ -440,24 +430,11 @@ export default function GatewayManager({ initialGateways, initialTokens, timeZon
                 aria-describedby={`gw-name-hint${ge.name ? " gw-name-err" : ""}`}
                 {...gForm.register("name")}
               />
-              <button
-                type="submit"
-                className="btn btn-primary"
-                disabled={gForm.formState.isSubmitting}
-              >
-                {gForm.formState.isSubmitting ? "Adding…" : "Add gateway"}
-              </button>
+              <SubmitButton busy={gForm.formState.isSubmitting} busyLabel="Adding…">
+                Add gateway
+              </SubmitButton>
             </div>
-            <p id="gw-name-hint" className="hint">
-              Letters, digits, dots, underscores and dashes; it is also the gateway's MQTT user
-              name.
-            </p>
-            {ge.name && (
-              <p id="gw-name-err" className="error-text">
-                {ge.name.message}
-              </p>
-            )}
-          </div>
+          </Field>
         </form>
       </section>
 
@@ -495,8 +472,8 @@ export default function GatewayManager({ initialGateways, initialTokens, timeZon
           noValidate
         >
           <div className="grid gap-3 sm:grid-cols-[1fr_12rem_auto] sm:items-end">
-            <div className="field">
-              <label htmlFor="tok-name">New token's name</label>
+            {/* The error stands under the whole row (it may be the role's), so it is not the field's. */}
+            <Field id="tok-name" label="New token's name">
               <input
                 id="tok-name"
                 className="input"
@@ -506,24 +483,16 @@ export default function GatewayManager({ initialGateways, initialTokens, timeZon
                 aria-describedby={`tok-name-hint${te.name ? " tok-name-err" : ""}`}
                 {...tForm.register("name")}
               />
-            </div>
-            <div className="field">
-              <label htmlFor="tok-role">Acts as</label>
-              <select id="tok-role" className="input" {...tForm.register("role")}>
-                {roles.map((r) => (
-                  <option key={r} value={r}>
-                    {roleLabels[r]}
-                  </option>
-                ))}
-              </select>
-            </div>
-            <button
-              type="submit"
-              className="btn btn-primary"
-              disabled={tForm.formState.isSubmitting}
-            >
-              {tForm.formState.isSubmitting ? "Making…" : "Make token"}
-            </button>
+            </Field>
+            <SelectField
+              id="tok-role"
+              label="Acts as"
+              options={roles.map((r) => [r, roleLabels[r]])}
+              {...tForm.register("role")}
+            />
+            <SubmitButton busy={tForm.formState.isSubmitting} busyLabel="Making…">
+              Make token
+            </SubmitButton>
           </div>
           <p id="tok-name-hint" className="hint mt-2">
             Name it for what uses it. The token may do what its role may, and no more.

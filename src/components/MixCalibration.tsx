@@ -1,12 +1,4 @@
-import {
-  useEffect,
-  useId,
-  useMemo,
-  useRef,
-  useState,
-  type SubmitEvent,
-  type ReactNode,
-} from "react";
+import { useEffect, useId, useMemo, useRef, useState, type SubmitEvent } from "react";
 import {
   LAB_CURING_TEMP_C,
   readTempRecordText,
@@ -17,8 +9,11 @@ import {
 import { makeWallClock } from "@/domain/loggerCsv";
 import type { UnitSystem } from "@/domain/units";
 import { formatDateTime, readProblem } from "@/lib/format";
-import Field from "./Field";
+import Field, { SelectField, SubmitButton, TextField, ariaFor } from "./Field";
+import Modal from "./Modal";
 import MixChart from "./MixChart";
+import { Banner, type Notice } from "./Notice";
+import TableHead from "./TableHead";
 import {
   ageText,
   calibrationCaution,
@@ -49,54 +44,6 @@ interface Props {
   canEdit: boolean;
   initialPoints: PointItem[];
   initialCalibration: CalibrationView;
-}
-
-type Notice = { tone: "ok" | "error"; text: string } | null;
-
-function NoticeLine({ notice }: { notice: Notice }) {
-  if (!notice) return null;
-  return (
-    <p
-      role={notice.tone === "error" ? "alert" : "status"}
-      className={`rounded-md px-3 py-2 text-sm font-semibold ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg text-ok"}`}
-    >
-      {notice.text}
-    </p>
-  );
-}
-
-/** A modal dialog (the browser's own), open while mounted; Escape or Cancel closes it. */
-function Modal({
-  title,
-  onClose,
-  children,
-}: {
-  title: string;
-  onClose: () => void;
-  children: ReactNode;
-}) {
-  const ref = useRef<HTMLDialogElement>(null);
-  const titleId = useId();
-  useEffect(() => {
-    const d = ref.current;
-    if (d && !d.open) d.showModal();
-    return () => d?.close();
-  }, []);
-  return (
-    <dialog
-      ref={ref}
-      aria-labelledby={titleId}
-      onClose={onClose}
-      className="m-auto w-[min(34rem,calc(100vw-1.5rem))] rounded-xl border border-line bg-surface p-0 text-ink backdrop:bg-black/60"
-    >
-      <div className="max-h-[calc(100dvh-2rem)] overflow-y-auto p-4 sm:p-5">
-        <h2 id={titleId} className="text-lg font-bold">
-          {title}
-        </h2>
-        {children}
-      </div>
-    </dialog>
-  );
 }
 
 /** Warnings shown by word and mark, never by colour alone. */
@@ -216,7 +163,7 @@ function AddBreak({
   const [specimens, setSpecimens] = useState("");
   const [brokenOn, setBrokenOn] = useState(() => plantDate(Date.now(), timeZone));
   const [errors, setErrors] = useState<Record<string, string>>({});
-  const [notice, setNotice] = useState<Notice>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [busy, setBusy] = useState(false);
   const id = (k: string) => `${uid}-${k}`;
 
@@ -332,8 +279,7 @@ function AddBreak({
   }
 
   const err = (k: string) => errors[k];
-  const described = (k: string) =>
-    errors[k] ? { "aria-invalid": true as const, "aria-describedby": `${id(k)}-err` } : {};
+  const described = (k: string) => ariaFor(id(k), err(k));
 
   return (
     <form onSubmit={submit} noValidate className="grid grid-cols-1 gap-4" aria-label="Add a break">
@@ -362,30 +308,24 @@ function AddBreak({
             </select>
           </div>
         </Field>
-        <Field
+        <TextField
           id={id("strength_psi")}
           label={`Mean strength (${strengthUnit(units)})`}
           error={err("strength_psi")}
           hint="Mean of the cylinders broken at this age"
-        >
-          <input
-            id={id("strength_psi")}
-            className="input figure"
-            inputMode="decimal"
-            value={strength}
-            onChange={(e) => setStrength(e.target.value)}
-            {...described("strength_psi")}
-          />
-        </Field>
-        <Field id={id("specimens")} label="Specimens" hint="Cylinder marks, e.g. HS10-C4 A, B">
-          <input
-            id={id("specimens")}
-            className="input"
-            value={specimens}
-            maxLength={500}
-            onChange={(e) => setSpecimens(e.target.value)}
-          />
-        </Field>
+          className="input figure"
+          inputMode="decimal"
+          value={strength}
+          onChange={(e) => setStrength(e.target.value)}
+        />
+        <TextField
+          id={id("specimens")}
+          label="Specimens"
+          hint="Cylinder marks, e.g. HS10-C4 A, B"
+          value={specimens}
+          maxLength={500}
+          onChange={(e) => setSpecimens(e.target.value)}
+        />
       </div>
 
       <fieldset className="grid grid-cols-1 gap-3">
@@ -412,38 +352,28 @@ function AddBreak({
           ))}
         </div>
         {source === "constant" && (
-          <Field
+          <TextField
             id={id("temp_c")}
             label={`Curing temperature (${tempUnit(units)})`}
             error={err("temp_c")}
             hint={`Lab moist room per ASTM C511: ${tempText(LAB_CURING_TEMP_C, units)} ± ${units === "us" ? "3.5 °F" : "2 °C"}.`}
-          >
-            <input
-              id={id("temp_c")}
-              className="input figure sm:max-w-48"
-              inputMode="decimal"
-              value={curingTemp}
-              onChange={(e) => setCuringTemp(e.target.value)}
-              {...described("temp_c")}
-            />
-          </Field>
+            className="input figure sm:max-w-48"
+            inputMode="decimal"
+            value={curingTemp}
+            onChange={(e) => setCuringTemp(e.target.value)}
+          />
         )}
         {source === "maturity" && (
-          <Field
+          <TextField
             id={id("ttf_c_h")}
             label="Temperature-time factor (°C·h)"
             error={err("ttf_c_h")}
             hint={`With this mix's datum temperature, ${tempText(mix.datum_temp_c, "si")}.`}
-          >
-            <input
-              id={id("ttf_c_h")}
-              className="input figure sm:max-w-48"
-              inputMode="decimal"
-              value={ttf}
-              onChange={(e) => setTtf(e.target.value)}
-              {...described("ttf_c_h")}
-            />
-          </Field>
+            className="input figure sm:max-w-48"
+            inputMode="decimal"
+            value={ttf}
+            onChange={(e) => setTtf(e.target.value)}
+          />
         )}
         {source === "record" && (
           <div className="grid grid-cols-1 gap-2">
@@ -490,20 +420,20 @@ function AddBreak({
         )}
       </fieldset>
 
-      <Field id={id("broken_at")} label="Broken on" error={err("broken_at")}>
-        <input
-          id={id("broken_at")}
-          type="date"
-          className="input sm:max-w-56"
-          value={brokenOn}
-          onChange={(e) => setBrokenOn(e.target.value)}
-        />
-      </Field>
-      <NoticeLine notice={notice} />
+      <TextField
+        id={id("broken_at")}
+        label="Broken on"
+        error={err("broken_at")}
+        type="date"
+        className="input sm:max-w-56"
+        value={brokenOn}
+        onChange={(e) => setBrokenOn(e.target.value)}
+      />
+      {notice && <Banner {...notice} />}
       <div>
-        <button type="submit" className="btn btn-primary" disabled={busy}>
-          {busy ? "Adding…" : "Add the break"}
-        </button>
+        <SubmitButton busy={busy} busyLabel="Adding…">
+          Add the break
+        </SubmitButton>
       </div>
     </form>
   );
@@ -560,7 +490,7 @@ function LabUpload({
   const [useLabTemp, setUseLabTemp] = useState(true);
   const [labTemp, setLabTemp] = useState(tempInput(LAB_CURING_TEMP_C, units));
   const [preview, setPreview] = useState<LabPreview | null>(null);
-  const [notice, setNotice] = useState<Notice>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [busy, setBusy] = useState<"" | "reading" | "importing">("");
   const id = (k: string) => `${uid}-${k}`;
 
@@ -635,16 +565,13 @@ function LabUpload({
     set: (v: string) => void,
     options: [string, string][],
   ) => (
-    <Field id={id(k)} label={label}>
-      <select id={id(k)} className="input" value={value} onChange={(e) => set(e.target.value)}>
-        <option value="">As the file's header says</option>
-        {options.map(([v, l]) => (
-          <option key={v} value={v}>
-            {l}
-          </option>
-        ))}
-      </select>
-    </Field>
+    <SelectField
+      id={id(k)}
+      label={label}
+      value={value}
+      onChange={(e) => set(e.target.value)}
+      options={[["", "As the file's header says"], ...options]}
+    />
   );
 
   return (
@@ -713,7 +640,7 @@ function LabUpload({
           Reading the file…
         </p>
       )}
-      <NoticeLine notice={notice} />
+      {notice && <Banner {...notice} />}
       {preview && (
         <section
           aria-label="Preview of the lab's file"
@@ -743,25 +670,10 @@ function LabUpload({
             <div className="relative overflow-x-auto">
               <table className="w-full min-w-[30rem] text-left text-sm">
                 <caption className="sr-only">Points the file gives</caption>
-                <thead className="border-b border-line text-muted">
-                  <tr>
-                    <th scope="col" className="p-2">
-                      Age
-                    </th>
-                    <th scope="col" className="p-2">
-                      Cylinders
-                    </th>
-                    <th scope="col" className="p-2">
-                      Mean strength
-                    </th>
-                    <th scope="col" className="p-2">
-                      Maturity
-                    </th>
-                    <th scope="col" className="p-2">
-                      Spread
-                    </th>
-                  </tr>
-                </thead>
+                <TableHead
+                  cell="p-2"
+                  columns={["Age", "Cylinders", "Mean strength", "Maturity", "Spread"]}
+                />
                 <tbody>
                   {preview.points.map((p) => (
                     <tr key={p.rows.join("-")} className="border-b border-line last:border-0">
@@ -837,7 +749,7 @@ export default function MixCalibration({
   const [model, setModel] = useState<FitItem["model"]>(initialCalibration.current?.model ?? "log");
   const [confirmFit, setConfirmFit] = useState(false);
   const [removing, setRemoving] = useState<PointItem | null>(null);
-  const [notice, setNotice] = useState<Notice>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [busy, setBusy] = useState(false);
   const fit = view.current;
   const fitPointSet = new Set(
@@ -845,6 +757,18 @@ export default function MixCalibration({
   );
   const inFit = (p: PointItem) =>
     fitPointSet.has(`${Math.round(p.ttf_c_h)}|${Math.round(p.strength_psi)}`);
+  // The same button on the phone's cards and the desk's table.
+  const removeButton = (p: PointItem) => (
+    <button
+      type="button"
+      className="btn btn-quiet min-h-10 px-3 text-sm"
+      disabled={busy}
+      onClick={() => setRemoving(p)}
+    >
+      Remove
+      <span className="sr-only"> the break{p.age_h !== null ? ` at ${ageText(p.age_h)}` : ""}</span>
+    </button>
+  );
 
   async function reloadPoints() {
     const res = await fetch(`/api/v1/mixes/${mix.id}/points`);
@@ -1027,21 +951,19 @@ export default function MixCalibration({
             <h3 className="font-bold">Fit the stored breaks</h3>
             <div className="flex flex-wrap items-end gap-3">
               <div className="min-w-64 flex-1 sm:max-w-md">
-                <Field id={`${uid}-model`} label="Model">
-                  <select
-                    id={`${uid}-model`}
-                    className="input"
-                    value={model}
-                    onChange={(e) => setModel(e.target.value as FitItem["model"])}
-                  >
-                    {(Object.keys(modelLabels) as FitItem["model"][]).map((m) => (
-                      <option key={m} value={m}>
-                        {modelNames[m]}
-                        {m === "log" ? " (ASTM C1074)" : ""}
-                      </option>
-                    ))}
-                  </select>
-                </Field>
+                <SelectField
+                  id={`${uid}-model`}
+                  label="Model"
+                  value={model}
+                  onChange={(e) => setModel(e.target.value as FitItem["model"])}
+                >
+                  {(Object.keys(modelLabels) as FitItem["model"][]).map((m) => (
+                    <option key={m} value={m}>
+                      {modelNames[m]}
+                      {m === "log" ? " (ASTM C1074)" : ""}
+                    </option>
+                  ))}
+                </SelectField>
                 <p className="hint figure mt-1">{modelLabels[model].split(": ")[1]}</p>
               </div>
               <button
@@ -1064,7 +986,7 @@ export default function MixCalibration({
                 Working…
               </p>
             )}
-            <NoticeLine notice={notice} />
+            {notice && <Banner {...notice} />}
           </div>
         )}
       </section>
@@ -1110,20 +1032,7 @@ export default function MixCalibration({
                           </span>
                         ))}
                     </span>
-                    {canEdit && (
-                      <button
-                        type="button"
-                        className="btn btn-quiet min-h-10 px-3 text-sm"
-                        disabled={busy}
-                        onClick={() => setRemoving(p)}
-                      >
-                        Remove
-                        <span className="sr-only">
-                          {" "}
-                          the break{p.age_h !== null ? ` at ${ageText(p.age_h)}` : ""}
-                        </span>
-                      </button>
-                    )}
+                    {canEdit && removeButton(p)}
                   </div>
                 </li>
               ))}
@@ -1131,38 +1040,19 @@ export default function MixCalibration({
             <div className="relative hidden overflow-x-auto sm:block">
               <table className="w-full min-w-[36rem] text-left text-sm" data-testid="breaks-table">
                 <caption className="sr-only">Cylinder breaks of {mix.name}</caption>
-                <thead className="border-b border-line text-muted">
-                  <tr>
-                    <th scope="col" className="p-2">
-                      Age
-                    </th>
-                    <th scope="col" className="p-2">
-                      Maturity
-                    </th>
-                    <th scope="col" className="p-2">
-                      Equivalent age
-                    </th>
-                    <th scope="col" className="p-2">
-                      Mean strength
-                    </th>
-                    <th scope="col" className="p-2">
-                      Specimens
-                    </th>
-                    <th scope="col" className="p-2">
-                      Broken
-                    </th>
-                    {fit && (
-                      <th scope="col" className="p-2">
-                        In fit
-                      </th>
-                    )}
-                    {canEdit && (
-                      <th scope="col" className="p-2">
-                        <span className="sr-only">Actions</span>
-                      </th>
-                    )}
-                  </tr>
-                </thead>
+                <TableHead
+                  cell="p-2"
+                  columns={[
+                    "Age",
+                    "Maturity",
+                    "Equivalent age",
+                    "Mean strength",
+                    "Specimens",
+                    "Broken",
+                    !!fit && "In fit",
+                    canEdit && { label: "Actions", srOnly: true },
+                  ]}
+                />
                 <tbody>
                   {points.map((p) => (
                     <tr key={p.id} className="border-b border-line last:border-0">
@@ -1194,22 +1084,7 @@ export default function MixCalibration({
                           )}
                         </td>
                       )}
-                      {canEdit && (
-                        <td className="p-2 text-right">
-                          <button
-                            type="button"
-                            className="btn btn-quiet min-h-10 px-3 text-sm"
-                            disabled={busy}
-                            onClick={() => setRemoving(p)}
-                          >
-                            Remove
-                            <span className="sr-only">
-                              {" "}
-                              the break{p.age_h !== null ? ` at ${ageText(p.age_h)}` : ""}
-                            </span>
-                          </button>
-                        </td>
-                      )}
+                      {canEdit && <td className="p-2 text-right">{removeButton(p)}</td>}
                     </tr>
                   ))}
                 </tbody>
@@ -1255,28 +1130,10 @@ export default function MixCalibration({
           <div className="relative mt-2 overflow-x-auto">
             <table className="w-full min-w-[36rem] text-left text-sm" data-testid="fit-history">
               <caption className="sr-only">Fits of {mix.name}, newest first</caption>
-              <thead className="border-b border-line text-muted">
-                <tr>
-                  <th scope="col" className="p-2">
-                    Fitted
-                  </th>
-                  <th scope="col" className="p-2">
-                    Model
-                  </th>
-                  <th scope="col" className="p-2">
-                    R²
-                  </th>
-                  <th scope="col" className="p-2">
-                    RMSE
-                  </th>
-                  <th scope="col" className="p-2">
-                    Breaks
-                  </th>
-                  <th scope="col" className="p-2">
-                    Warnings
-                  </th>
-                </tr>
-              </thead>
+              <TableHead
+                cell="p-2"
+                columns={["Fitted", "Model", "R²", "RMSE", "Breaks", "Warnings"]}
+              />
               <tbody>
                 {view.history.map((f) => (
                   <tr

@@ -2,7 +2,10 @@ import { useState, type SyntheticEvent } from "react";
 import { displayStrength, type UnitSystem } from "@/domain/units";
 import { formatDateTime, readProblem } from "@/lib/format";
 import { fromPlantInput, toPlantInput } from "@/lib/plantTime";
-import Field from "./Field";
+import { SubmitButton, TextField } from "./Field";
+import FormCard from "./FormCard";
+import { Banner, type Notice } from "./Notice";
+import TableHead from "./TableHead";
 
 /** A break as GET /api/v1/pours/{id}/breaks shows it. */
 export interface BreakItem {
@@ -55,7 +58,7 @@ export default function PourBreaks({
 }: Props) {
   const [items, setItems] = useState(initial);
   const [adding, setAdding] = useState(false);
-  const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [busy, setBusy] = useState(false);
   const [specimen, setSpecimen] = useState("");
   const [brokenAt, setBrokenAt] = useState(() => toPlantInput(nowMs, timeZone));
@@ -138,14 +141,7 @@ export default function PourBreaks({
 
   return (
     <div className="grid gap-3">
-      {notice && (
-        <p
-          role={notice.tone === "ok" ? "status" : "alert"}
-          className={`card p-3 font-semibold ${notice.tone === "ok" ? "bg-ok-bg text-ok" : "bg-alarm-bg text-alarm"}`}
-        >
-          {notice.text}
-        </p>
-      )}
+      {notice && <Banner {...notice} look="card" />}
       {warned > 0 && (
         <div
           className="card border-alarm bg-alarm-bg p-3 text-sm text-alarm"
@@ -174,31 +170,18 @@ export default function PourBreaks({
         <div className="overflow-x-auto">
           <table className="w-full min-w-[40rem] text-left text-sm">
             <caption className="sr-only">Cylinder breaks of {code} against the estimate</caption>
-            <thead className="border-b border-line text-muted">
-              <tr>
-                <th scope="col" className="p-2">
-                  Cylinder
-                </th>
-                <th scope="col" className="p-2">
-                  Broken
-                </th>
-                <th scope="col" className="p-2 text-right">
-                  Age
-                </th>
-                <th scope="col" className="p-2 text-right">
-                  Strength
-                </th>
-                <th scope="col" className="p-2 text-right">
-                  Estimate then
-                </th>
-                <th scope="col" className="p-2 text-right">
-                  Ratio
-                </th>
-                <th scope="col" className="p-2">
-                  Check
-                </th>
-              </tr>
-            </thead>
+            <TableHead
+              cell="p-2"
+              columns={[
+                "Cylinder",
+                "Broken",
+                { label: "Age", className: "text-right" },
+                { label: "Strength", className: "text-right" },
+                { label: "Estimate then", className: "text-right" },
+                { label: "Ratio", className: "text-right" },
+                "Check",
+              ]}
+            />
             <tbody>
               {items.map((b) => (
                 <tr key={b.id} className="border-b border-line last:border-0">
@@ -225,101 +208,78 @@ export default function PourBreaks({
         </div>
       )}
 
-      {canAdd &&
-        (!adding ? (
-          <div>
-            <button type="button" className="btn btn-quiet" onClick={() => setAdding(true)}>
-              Enter a break
-            </button>
-          </div>
-        ) : (
-          <form
-            className="card grid grid-cols-1 gap-3 p-3 sm:grid-cols-2"
-            onSubmit={(e) => void add(e)}
-            noValidate
+      {canAdd && (
+        <FormCard
+          open={adding}
+          openLabel="Enter a break"
+          onOpen={() => setAdding(true)}
+          onCancel={() => setAdding(false)}
+          onSubmit={add}
+          className="sm:grid-cols-2"
+          span="sm:col-span-2"
+          submit={
+            <SubmitButton busy={busy} busyLabel="Comparing…">
+              Record break
+            </SubmitButton>
+          }
+        >
+          <TextField
+            id="br-specimen"
+            label="Cylinder id"
+            error={errors.specimen_id}
+            className="input figure"
+            list="br-cylinders"
+            autoComplete="off"
+            value={specimen}
+            onChange={(e) => setSpecimen(e.target.value)}
           >
-            <Field id="br-specimen" label="Cylinder id" error={errors.specimen_id}>
-              <input
-                id="br-specimen"
-                className="input figure"
-                list="br-cylinders"
-                autoComplete="off"
-                value={specimen}
-                onChange={(e) => setSpecimen(e.target.value)}
-                aria-invalid={errors.specimen_id ? true : undefined}
-                aria-describedby={errors.specimen_id ? "br-specimen-err" : undefined}
-              />
-              <datalist id="br-cylinders">
-                {unbroken.map((c) => (
-                  <option key={c} value={c} />
-                ))}
-              </datalist>
-            </Field>
-            <Field
-              id="br-at"
-              label="Broken at"
-              error={errors.broken_at}
-              hint={`Plant time (${timeZone})`}
-            >
-              <input
-                id="br-at"
-                type="datetime-local"
-                className="input min-w-0"
-                value={brokenAt}
-                onChange={(e) => setBrokenAt(e.target.value)}
-                aria-invalid={errors.broken_at ? true : undefined}
-                aria-describedby={errors.broken_at ? "br-at-err" : undefined}
-              />
-            </Field>
-            <Field
-              id="br-strength"
-              label={`Strength (${us ? "psi" : "MPa"})`}
-              error={errors.strength}
-            >
-              <input
-                id="br-strength"
-                className="input figure"
-                inputMode="decimal"
-                value={strength}
-                onChange={(e) => setStrength(e.target.value)}
-                aria-invalid={errors.strength ? true : undefined}
-                aria-describedby={errors.strength ? "br-strength-err" : undefined}
-              />
-            </Field>
-            <Field id="br-lab" label="Lab (optional)">
-              <input
-                id="br-lab"
-                className="input"
-                value={lab}
-                onChange={(e) => setLab(e.target.value)}
-                maxLength={80}
-              />
-            </Field>
-            <div className="sm:col-span-2">
-              <Field id="br-note" label="Note (optional)">
-                <input
-                  id="br-note"
-                  className="input"
-                  value={note}
-                  onChange={(e) => setNote(e.target.value)}
-                  maxLength={1000}
-                />
-              </Field>
-            </div>
-            <p className="hint sm:col-span-2">
-              The break is compared with the estimate at the moment it was broken, from the coldest
-              sensor&apos;s readings up to then.
-            </p>
-            <div className="flex flex-wrap gap-2 sm:col-span-2">
-              <button type="submit" className="btn btn-primary" disabled={busy}>
-                {busy ? "Comparing…" : "Record break"}
-              </button>
-              <button type="button" className="btn btn-quiet" onClick={() => setAdding(false)}>
-                Cancel
-              </button>
-            </div>
-          </form>
-        ))}
+            <datalist id="br-cylinders">
+              {unbroken.map((c) => (
+                <option key={c} value={c} />
+              ))}
+            </datalist>
+          </TextField>
+          <TextField
+            id="br-at"
+            label="Broken at"
+            error={errors.broken_at}
+            hint={`Plant time (${timeZone})`}
+            type="datetime-local"
+            className="input min-w-0"
+            value={brokenAt}
+            onChange={(e) => setBrokenAt(e.target.value)}
+          />
+          <TextField
+            id="br-strength"
+            label={`Strength (${us ? "psi" : "MPa"})`}
+            error={errors.strength}
+            className="input figure"
+            inputMode="decimal"
+            value={strength}
+            onChange={(e) => setStrength(e.target.value)}
+          />
+          <TextField
+            id="br-lab"
+            label="Lab (optional)"
+            value={lab}
+            onChange={(e) => setLab(e.target.value)}
+            maxLength={80}
+          />
+          <div className="sm:col-span-2">
+            <TextField
+              id="br-note"
+              label="Note (optional)"
+              value={note}
+              onChange={(e) => setNote(e.target.value)}
+              maxLength={1000}
+            />
+          </div>
+          <p className="hint sm:col-span-2">
+            The break is compared with the estimate at the moment it was broken, from the coldest
+            sensor&apos;s readings up to then.
+          </p>
+        </FormCard>
+      )}
     </div>
   );
 }

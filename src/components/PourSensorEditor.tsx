@@ -4,7 +4,9 @@ import { formatDuration, sensorState } from "@/domain/sensorState";
 import { displayTemp, type UnitSystem } from "@/domain/units";
 import { formatDateTime, readProblem } from "@/lib/format";
 import { fromPlantInput, toPlantInput } from "@/lib/plantTime";
-import Field from "./Field";
+import { SelectField, SubmitButton, TextField } from "./Field";
+import FormCard from "./FormCard";
+import { Banner, type Notice } from "./Notice";
 import type { SensorOption } from "./PourNewForm";
 
 /** One assignment as GET /api/v1/pours/{id}/sensors shows it. */
@@ -55,7 +57,7 @@ export default function PourSensorEditor({
   const [items, setItems] = useState(initial);
   const [others, setOthers] = useState(pickable);
   const [busy, setBusy] = useState<string | null>(null);
-  const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [adding, setAdding] = useState(false);
   const [sensor, setSensor] = useState("");
   const [location, setLocation] = useState("");
@@ -153,14 +155,7 @@ export default function PourSensorEditor({
 
   return (
     <div className="grid gap-3">
-      {notice && (
-        <p
-          role={notice.tone === "error" ? "alert" : "status"}
-          className={`card p-3 font-semibold ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg text-ok"}`}
-        >
-          {notice.text}
-        </p>
-      )}
+      {notice && <Banner {...notice} look="card" />}
       {current.length === 0 ? (
         <p className="card bg-warn-bg p-3 font-semibold text-warn">
           <span aria-hidden="true">▲ </span>No sensor is on this pour now: nothing adds to its
@@ -279,88 +274,76 @@ export default function PourSensorEditor({
         </details>
       )}
 
-      {canEdit &&
-        (!adding ? (
-          <div>
-            <button type="button" className="btn btn-quiet" onClick={() => setAdding(true)}>
-              Put a sensor on
-            </button>
-          </div>
-        ) : (
-          <form
-            className="card grid grid-cols-1 gap-3 p-3 sm:grid-cols-3 sm:items-start"
-            onSubmit={(e) => void add(e)}
-            noValidate
+      {canEdit && (
+        <FormCard
+          open={adding}
+          openLabel="Put a sensor on"
+          onOpen={() => setAdding(true)}
+          onCancel={() => setAdding(false)}
+          onSubmit={add}
+          className="sm:grid-cols-3 sm:items-start"
+          span="sm:col-span-3"
+          submit={
+            <SubmitButton busy={busy === "add"} busyLabel="Putting on…" disabled={busy !== null}>
+              Put on this pour
+            </SubmitButton>
+          }
+        >
+          <SelectField
+            id="ps-sensor"
+            label="Sensor"
+            error={fieldError ?? undefined}
+            value={sensor}
+            onChange={(e) => {
+              setSensor(e.target.value);
+              setMoveOk(false);
+            }}
           >
-            <Field id="ps-sensor" label="Sensor" error={fieldError ?? undefined}>
-              <select
-                id="ps-sensor"
-                className="input"
-                value={sensor}
-                onChange={(e) => {
-                  setSensor(e.target.value);
-                  setMoveOk(false);
-                }}
-                aria-invalid={fieldError ? true : undefined}
-                aria-describedby={fieldError ? "ps-sensor-err" : undefined}
-              >
-                <option value="">Pick a sensor…</option>
-                {choices.map(([area, list]) => (
-                  <optgroup key={area} label={area}>
-                    {list.map((s) => (
-                      <option key={s.id} value={s.id}>
-                        {s.id} · {s.label ?? "unnamed"} ·{" "}
-                        {s.pour_code ? `on ${s.pour_code}` : "free"}
-                      </option>
-                    ))}
-                  </optgroup>
+            <option value="">Pick a sensor…</option>
+            {choices.map(([area, list]) => (
+              <optgroup key={area} label={area}>
+                {list.map((s) => (
+                  <option key={s.id} value={s.id}>
+                    {s.id} · {s.label ?? "unnamed"} · {s.pour_code ? `on ${s.pour_code}` : "free"}
+                  </option>
                 ))}
-              </select>
-            </Field>
-            <Field id="ps-location" label="Where on the pour (optional)">
+              </optgroup>
+            ))}
+          </SelectField>
+          <TextField
+            id="ps-location"
+            label="Where on the pour (optional)"
+            value={location}
+            onChange={(e) => setLocation(e.target.value)}
+            maxLength={80}
+            autoComplete="off"
+          />
+          <TextField
+            id="ps-from"
+            label="On since"
+            hint={`Plant time (${timeZone})`}
+            type="datetime-local"
+            className="input min-w-0"
+            value={from}
+            onChange={(e) => setFrom(e.target.value)}
+          />
+          {chosen?.pour_code && (
+            <label className="card flex min-h-11 items-center gap-3 bg-warn-bg p-3 text-sm text-warn sm:col-span-3">
               <input
-                id="ps-location"
-                className="input"
-                value={location}
-                onChange={(e) => setLocation(e.target.value)}
-                maxLength={80}
-                autoComplete="off"
+                type="checkbox"
+                className="h-5 w-5"
+                checked={moveOk}
+                onChange={(e) => setMoveOk(e.target.checked)}
               />
-            </Field>
-            <Field id="ps-from" label="On since" hint={`Plant time (${timeZone})`}>
-              <input
-                id="ps-from"
-                type="datetime-local"
-                className="input min-w-0"
-                value={from}
-                onChange={(e) => setFrom(e.target.value)}
-              />
-            </Field>
-            {chosen?.pour_code && (
-              <label className="card flex min-h-11 items-center gap-3 bg-warn-bg p-3 text-sm text-warn sm:col-span-3">
-                <input
-                  type="checkbox"
-                  className="h-5 w-5"
-                  checked={moveOk}
-                  onChange={(e) => setMoveOk(e.target.checked)}
-                />
-                <span>
-                  <span aria-hidden="true">▲ </span>
-                  {chosen.id} is on {chosen.pour_code}. Move it here (its time there ends at “On
-                  since”)
-                </span>
-              </label>
-            )}
-            <div className="flex flex-wrap gap-2 sm:col-span-3">
-              <button type="submit" className="btn btn-primary" disabled={busy !== null}>
-                {busy === "add" ? "Putting on…" : "Put on this pour"}
-              </button>
-              <button type="button" className="btn btn-quiet" onClick={() => setAdding(false)}>
-                Cancel
-              </button>
-            </div>
-          </form>
-        ))}
+              <span>
+                <span aria-hidden="true">▲ </span>
+                {chosen.id} is on {chosen.pour_code}. Move it here (its time there ends at “On
+                since”)
+              </span>
+            </label>
+          )}
+        </FormCard>
+      )}
     </div>
   );
 }

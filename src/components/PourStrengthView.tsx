@@ -4,6 +4,7 @@ import { formatDuration } from "@/domain/sensorState";
 import type { UnitSystem } from "@/domain/units";
 import type { Milestone, PourStrength } from "@/lib/server/strength/pourStrength";
 import ReleaseBadge from "./ReleaseBadge";
+import TableHead from "./TableHead";
 import { datumText, relativeText, strengthText, whenText, whenWithRelative } from "./ReleaseFormat";
 
 export interface MissingStretch {
@@ -383,28 +384,16 @@ export default function PourStrengthView({
         </ul>
         <div className="hidden overflow-x-auto sm:block">
           <table className="w-full text-left text-sm">
-            <thead className="border-b border-line text-muted">
-              <tr>
-                <th scope="col" className="p-3">
-                  Sensor
-                </th>
-                <th scope="col" className="p-3 text-right">
-                  Temperature-time factor (°C·h)
-                </th>
-                <th scope="col" className="p-3 text-right">
-                  Equivalent age (h at 20 °C)
-                </th>
-                <th scope="col" className="p-3 text-right">
-                  Estimated strength
-                </th>
-                <th scope="col" className="p-3">
-                  Record
-                </th>
-                <th scope="col" className="p-3">
-                  Last reading
-                </th>
-              </tr>
-            </thead>
+            <TableHead
+              columns={[
+                "Sensor",
+                { label: "Temperature-time factor (°C·h)", className: "text-right" },
+                { label: "Equivalent age (h at 20 °C)", className: "text-right" },
+                { label: "Estimated strength", className: "text-right" },
+                "Record",
+                "Last reading",
+              ]}
+            />
             <tbody>
               {view.sensors.map((s) => {
                 const gov = s.sensor === view.governing_sensor;

@@ -1,5 +1,5 @@
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useEffect, useMemo, useRef, useState, type ReactNode } from "react";
+import { useEffect, useMemo, useState, type ReactNode } from "react";
 import { useForm } from "react-hook-form";
 import { z } from "zod";
 import {
@@ -14,7 +14,10 @@ import {
 import { formatDuration, sensorState } from "@/domain/sensorState";
 import { deltaCToF, deltaFToC, displayTemp, fToC, type UnitSystem } from "@/domain/units";
 import { formatDateTime, readProblem } from "@/lib/format";
-import Field from "./Field";
+import Field, { SelectField, SubmitButton, TextField } from "./Field";
+import Modal from "./Modal";
+import { NoticeCard, type Notice } from "./Notice";
+import TableHead from "./TableHead";
 
 /** One sensor as the page and GET /api/v1/sensors show it, with its newest calibration check. */
 export interface SensorItem {
@@ -137,39 +140,6 @@ async function api(path: string, method: string, body?: unknown) {
   });
 }
 
-/** A modal dialog (the browser's own), open while mounted; Escape or Cancel closes it. */
-function Modal({
-  title,
-  onClose,
-  children,
-}: {
-  title: string;
-  onClose: () => void;
-  children: ReactNode;
-}) {
-  const ref = useRef<HTMLDialogElement>(null);
-  useEffect(() => {
-    const d = ref.current;
-    if (d && !d.open) d.showModal();
-    return () => d?.close();
-  }, []);
-  return (
-    <dialog
-      ref={ref}
-      aria-labelledby="sensor-dialog-title"
-      onClose={onClose}
-      className="m-auto w-[min(34rem,calc(100vw-1.5rem))] rounded-xl border border-line bg-surface p-0 text-ink backdrop:bg-black/50"
-    >
-      <div className="max-h-[calc(100dvh-2rem)] overflow-y-auto p-4 sm:p-5">
-        <h2 id="sensor-dialog-title" className="text-lg font-bold">
-          {title}
-        </h2>
-        {children}
-      </div>
-    </dialog>
-  );
-}
-
 // ---------------------------------------------------------------------------------------
 // Name and place / edit
 
@@ -237,65 +207,52 @@ function EditDialog({
 
   const fid = (f: string) => `edit-${f}`;
   return (
-    <Modal title={isNew ? `Name and place ${sensor.id}` : `Edit ${sensor.id}`} onClose={onClose}>
+    <Modal
+      backdrop="backdrop:bg-black/50"
+      title={isNew ? `Name and place ${sensor.id}` : `Edit ${sensor.id}`}
+      onClose={onClose}
+    >
       <p className="hint">
         {isNew
           ? "A gateway sent this sensor's first readings. Give it a name the crew will know, say what it is and where it lives; it then joins the live floor."
           : "The name, kind and area the crew sees. Its readings stay as they are."}
       </p>
       <form className="mt-4 grid gap-4" onSubmit={form.handleSubmit(save)} noValidate>
-        <Field
+        <TextField
           id={fid("label")}
           label="Name"
           error={errors.label?.message}
           hint="e.g. Bed 3 east bag"
+          autoComplete="off"
+          {...form.register("label")}
+        />
+        <SelectField
+          id={fid("kind")}
+          label="Kind"
+          error={errors.kind?.message}
+          options={kinds.map((k) => [k, kindLabels[k]])}
+          {...form.register("kind")}
         >
-          <input
-            id={fid("label")}
-            className="input"
-            autoComplete="off"
-            aria-invalid={errors.label ? true : undefined}
-            aria-describedby={errors.label ? `${fid("label")}-err` : undefined}
-            {...form.register("label")}
-          />
-        </Field>
-        <Field id={fid("kind")} label="Kind" error={errors.kind?.message}>
-          <select
-            id={fid("kind")}
-            className="input"
-            aria-invalid={errors.kind ? true : undefined}
-            aria-describedby={errors.kind ? `${fid("kind")}-err` : undefined}
-            {...form.register("kind")}
-          >
-            <option value="" disabled>
-              Choose…
-            </option>
-            {kinds.map((k) => (
-              <option key={k} value={k}>
-                {kindLabels[k]}
-              </option>
-            ))}
-          </select>
-        </Field>
-        <Field id={fid("area")} label="Area" error={errors.area?.message}>
-          <select id={fid("area")} className="input" {...form.register("area")}>
-            <option value="">Not in an area (spare)</option>
-            {areas.map((a) => (
-              <option key={a} value={a}>
-                {a}
-              </option>
-            ))}
-          </select>
-        </Field>
+          <option value="" disabled>
+            Choose…
+          </option>
+        </SelectField>
+        <SelectField
+          id={fid("area")}
+          label="Area"
+          error={errors.area?.message}
+          options={[["", "Not in an area (spare)"], ...areas.map((a): [string, string] => [a, a])]}
+          {...form.register("area")}
+        />
         {error && (
           <p role="alert" className="error-text">
             {error}
           </p>
         )}
         <div className="flex flex-wrap gap-2">
-          <button type="submit" className="btn btn-primary" disabled={isSubmitting}>
-            {isSubmitting ? "Saving…" : isNew ? "Name and place" : "Save"}
-          </button>
+          <SubmitButton busy={isSubmitting} busyLabel="Saving…">
+            {isNew ? "Name and place" : "Save"}
+          </SubmitButton>
           <button type="button" className="btn btn-quiet" onClick={onClose}>
             Cancel
           </button>
@@ -474,12 +431,12 @@ function CalibrateDialog({
   }
 
   const fid = (f: string) => `cal-${f}`;
-  const described = (f: keyof CheckForm, hint = false) =>
-    [errors[f] ? `${fid(f)}-err` : null, hint ? `${fid(f)}-hint` : null]
-      .filter(Boolean)
-      .join(" ") || undefined;
   return (
-    <Modal title={`Record a calibration check: ${sensor.id}`} onClose={onClose}>
+    <Modal
+      backdrop="backdrop:bg-black/50"
+      title={`Record a calibration check: ${sensor.id}`}
+      onClose={onClose}
+    >
       <p className="hint">
         Put the sensor beside a reference thermometer, let both settle, and note what each reads.
         ASTM C511 asks for this at least every {CALIBRATION_INTERVAL_MONTHS} months.
@@ -490,110 +447,73 @@ function CalibrateDialog({
         noValidate
       >
         <div className="sm:col-span-2">
-          <Field
+          <TextField
             id={fid("checked_at")}
             label="Checked at"
             error={errors.checked_at?.message}
             hint={`The plant's time (${timeZone}).`}
-          >
-            <input
-              id={fid("checked_at")}
-              type="datetime-local"
-              className="input"
-              aria-invalid={errors.checked_at ? true : undefined}
-              aria-describedby={described("checked_at")}
-              {...form.register("checked_at")}
-            />
-          </Field>
+            type="datetime-local"
+            {...form.register("checked_at")}
+          />
         </div>
-        <Field
+        <TextField
           id={fid("reference")}
           label={`Reference thermometer (${unit})`}
           error={errors.reference?.message}
-        >
-          <input
-            id={fid("reference")}
-            className="input figure"
-            inputMode="decimal"
-            autoComplete="off"
-            aria-invalid={errors.reference ? true : undefined}
-            aria-describedby={described("reference")}
-            {...form.register("reference")}
-          />
-        </Field>
-        <Field
+          className="input figure"
+          inputMode="decimal"
+          autoComplete="off"
+          {...form.register("reference")}
+        />
+        <TextField
           id={fid("reading")}
           label={`Sensor's own reading (${unit})`}
           error={errors.reading?.message}
-        >
-          <input
-            id={fid("reading")}
-            className="input figure"
-            inputMode="decimal"
-            autoComplete="off"
-            aria-invalid={errors.reading ? true : undefined}
-            aria-describedby={described("reading", true)}
-            {...form.register("reading")}
-          />
-        </Field>
+          describedBy={[fid("reading-hint")]}
+          className="input figure"
+          inputMode="decimal"
+          autoComplete="off"
+          {...form.register("reading")}
+        />
         <p id={fid("reading-hint")} className="hint sm:col-span-2">
           The sensor's own figure, before Plinth's correction (now{" "}
           {offsetText(sensor.temp_offset_c, units)}): take it from the sensor's display, or take
           Plinth's figure and remove the correction.
         </p>
-        <Field
+        <TextField
           id={fid("offset")}
           label={`Correction (${unit}, optional)`}
           error={errors.offset?.message}
           hint={`Empty: reference minus the sensor's reading. At most ${units === "us" ? `${deltaCToF(MAX_TEMP_OFFSET_C)} °F` : `${MAX_TEMP_OFFSET_C} °C`} either way.`}
-        >
-          <input
-            id={fid("offset")}
-            className="input figure"
-            autoComplete="off"
-            aria-invalid={errors.offset ? true : undefined}
-            aria-describedby={described("offset")}
-            {...form.register("offset")}
-          />
-        </Field>
+          className="input figure"
+          autoComplete="off"
+          {...form.register("offset")}
+        />
         {hasHumidity && (
-          <Field
+          <TextField
             id={fid("rh_offset")}
             label="Humidity correction (% RH)"
             error={errors.rh_offset?.message}
             hint={`Now ${sensor.rh_offset_pct} % RH. Empty sets 0. At most ${MAX_RH_OFFSET_PCT} either way.`}
-          >
-            <input
-              id={fid("rh_offset")}
-              className="input figure"
-              autoComplete="off"
-              aria-invalid={errors.rh_offset ? true : undefined}
-              aria-describedby={described("rh_offset")}
-              {...form.register("rh_offset")}
-            />
-          </Field>
+            className="input figure"
+            autoComplete="off"
+            {...form.register("rh_offset")}
+          />
         )}
-        <Field
+        <TextField
           id={fid("next_due")}
           label="Next check due (optional)"
           error={errors.next_due?.message}
           hint={`Empty: ${CALIBRATION_INTERVAL_MONTHS} months after this check.`}
-        >
-          <input
-            id={fid("next_due")}
-            type="date"
-            className="input"
-            aria-invalid={errors.next_due ? true : undefined}
-            aria-describedby={described("next_due")}
-            {...form.register("next_due")}
-          />
-        </Field>
+          type="date"
+          {...form.register("next_due")}
+        />
         <Field id={fid("note")} label="Note (optional)" error={errors.note?.message}>
           <textarea
             id={fid("note")}
             rows={2}
             className="input py-2"
-            aria-describedby={described("note")}
+            aria-describedby={errors.note ? `${fid("note")}-err` : undefined}
             {...form.register("note")}
           />
         </Field>
@@ -614,9 +534,9 @@ function CalibrateDialog({
           </p>
         )}
         <div className="flex flex-wrap gap-2 sm:col-span-2">
-          <button type="submit" className="btn btn-primary" disabled={isSubmitting}>
-            {isSubmitting ? "Recording…" : "Record check"}
-          </button>
+          <SubmitButton busy={isSubmitting} busyLabel="Recording…">
+            Record check
+          </SubmitButton>
           <button type="button" className="btn btn-quiet" onClick={onClose}>
             Cancel
           </button>
@@ -703,7 +623,7 @@ export default function SensorManager({
     dueOnly: false,
   });
   const [dialog, setDialog] = useState<{ mode: "edit" | "calibrate"; id: string } | null>(null);
-  const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
+  const [notice, setNotice] = useState<Notice | null>(null);
   const [busy, setBusy] = useState<string | null>(null);
 
   // Keep "last seen" and the figures current: the clock every 30 s, the list every minute.
@@ -822,71 +742,61 @@ export default function SensorManager({
     );
 
   const actions = (s: SensorItem, status: Status) => {
+    // The first step for a new sensor is the primary button, never held back by a busy row.
+    const act = (key: string, label: string, of: string, onClick: () => void, first = false) => (
+      <button
+        key={key}
+        type="button"
+        className={`btn ${first ? "btn-primary" : "btn-quiet"} text-sm`}
+        disabled={first ? undefined : busy === s.id}
+        onClick={onClick}
+      >
+        {label}
+        <span className="sr-only"> {of}</span>
+      </button>
+    );
+    const edit = () => setDialog({ mode: "edit", id: s.id });
     const out: ReactNode[] = [];
-    if (canAdmin && status === "new") {
+    if (canAdmin && status === "new") out.push(act("place", "Name and place", s.id, edit, true));
+    else if (canAdmin) out.push(act("edit", "Edit", s.id, edit));
+    if (canCalibrate && status !== "new")
       out.push(
-        <button
-          key="place"
-          type="button"
-          className="btn btn-primary text-sm"
-          onClick={() => setDialog({ mode: "edit", id: s.id })}
-        >
-          Name and place<span className="sr-only"> {s.id}</span>
-        </button>,
+        act("check", "Record check", `of ${s.id}`, () =>
+          setDialog({ mode: "calibrate", id: s.id }),
+        ),
       );
-    } else if (canAdmin) {
+    if (canAdmin && status !== "new")
       out.push(
-        <button
-          key="edit"
-          type="button"
-          className="btn btn-quiet text-sm"
-          disabled={busy === s.id}
-          onClick={() => setDialog({ mode: "edit", id: s.id })}
-        >
-          Edit<span className="sr-only"> {s.id}</span>
-        </button>,
+        act(
+          "service",
+          status === "retired" ? "Return to service" : "Retire",
+          s.id,
+          () => void setInService(s, status === "retired"),
+        ),
       );
-    }
-    if (canCalibrate && status !== "new") {
-      out.push(
-        <button
-          key="check"
-          type="button"
-          className="btn btn-quiet text-sm"
-          disabled={busy === s.id}
-          onClick={() => setDialog({ mode: "calibrate", id: s.id })}
-        >
-          Record check<span className="sr-only"> of {s.id}</span>
-        </button>,
-      );
-    }
-    if (canAdmin && status !== "new") {
-      out.push(
-        <button
-          key="service"
-          type="button"
-          className="btn btn-quiet text-sm"
-          disabled={busy === s.id}
-          onClick={() => void setInService(s, status === "retired")}
-        >
-          {status === "retired" ? "Return to service" : "Retire"}
-          <span className="sr-only"> {s.id}</span>
-        </button>,
-      );
-    }
     return out.length ? <div className="flex flex-wrap gap-2">{out}</div> : null;
   };
 
   const set = <K extends keyof Filters>(k: K, v: Filters[K]) =>
     setFilters((f) => ({ ...f, [k]: v }));
+  const filterSelect = (
+    k: "area" | "kind" | "status",
+    label: string,
+    options: [value: string, label: string][],
+  ) => (
+    <SelectField
+      id={`f-${k}`}
+      label={label}
+      value={filters[k]}
+      onChange={(e) => set(k, e.target.value)}
+      options={options}
+    />
+  );
 
   return (
     <div className="grid gap-6">
       {notice && (
-        <div
-          role={notice.tone === "error" ? "alert" : "status"}
-          className={`card flex items-start justify-between gap-3 p-4 ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg"}`}
-        >
+        <NoticeCard tone={notice.tone} className="flex items-start justify-between gap-3">
           <p className="font-semibold">{notice.text}</p>
           <button
             type="button"
@@ -895,7 +805,7 @@ export default function SensorManager({
           >
             Dismiss
           </button>
-        </div>
+        </NoticeCard>
       )}
 
       <section aria-labelledby="queue-h" className="card p-4">
@@ -997,56 +907,17 @@ export default function SensorManager({
               onChange={(e) => set("q", e.target.value)}
             />
           </div>
-          <div className="field">
-            <label htmlFor="f-area">Area</label>
-            <select
-              id="f-area"
-              className="input"
-              value={filters.area}
-              onChange={(e) => set("area", e.target.value)}
-            >
-              <option value="">All areas</option>
-              {areas.map((a) => (
-                <option key={a} value={a}>
-                  {a}
-                </option>
-              ))}
-              <option value={NONE}>Not in an area</option>
-            </select>
-          </div>
-          <div className="field">
-            <label htmlFor="f-kind">Kind</label>
-            <select
-              id="f-kind"
-              className="input"
-              value={filters.kind}
-              onChange={(e) => set("kind", e.target.value)}
-            >
-              <option value="">All kinds</option>
-              {kinds.map((k) => (
-                <option key={k} value={k}>
-                  {kindLabels[k]}
-                </option>
-              ))}
-              <option value={NONE}>Not set</option>
-            </select>
-          </div>
-          <div className="field">
-            <label htmlFor="f-status">Status</label>
-            <select
-              id="f-status"
-              className="input"
-              value={filters.status}
-              onChange={(e) => set("status", e.target.value)}
-            >
-              <option value="">All</option>
-              {(Object.keys(statusLabels) as Status[]).map((st) => (
-                <option key={st} value={st}>
-                  {statusLabels[st]}
-                </option>
-              ))}
-            </select>
-          </div>
+          {filterSelect("area", "Area", [
+            ["", "All areas"],
+            ...areas.map((a): [string, string] => [a, a]),
+            [NONE, "Not in an area"],
+          ])}
+          {filterSelect("kind", "Kind", [
+            ["", "All kinds"],
+            ...kinds.map((k): [string, string] => [k, kindLabels[k]]),
+            [NONE, "Not set"],
+          ])}
+          {filterSelect("status", "Status", [["", "All"], ...Object.entries(statusLabels)])}
           <label className="flex min-h-11 items-center gap-2 self-end text-sm font-semibold">
             <input
               type="checkbox"
@@ -1097,36 +968,18 @@ export default function SensorManager({
             <div className="card hidden overflow-x-auto lg:block">
               <table className="w-full text-left text-sm" data-testid="sensor-table">
                 <caption className="sr-only">Sensors</caption>
-                <thead className="border-b border-line text-muted">
-                  <tr>
-                    <th scope="col" className="p-3">
-                      Sensor
-                    </th>
-                    <th scope="col" className="p-3">
-                      Kind and area
-                    </th>
-                    <th scope="col" className="p-3">
-                      Last reading
-                    </th>
-                    <th scope="col" className="p-3">
-                      Last seen
-                    </th>
-                    <th scope="col" className="p-3">
-                      Battery
-                    </th>
-                    <th scope="col" className="p-3">
-                      Status
-                    </th>
-                    <th scope="col" className="p-3">
-                      Calibration
-                    </th>
-                    {(canAdmin || canCalibrate) && (
-                      <th scope="col" className="p-3">
-                        Actions
-                      </th>
-                    )}
-                  </tr>
-                </thead>
+                <TableHead
+                  columns={[
+                    "Sensor",
+                    "Kind and area",
+                    "Last reading",
+                    "Last seen",
+                    "Battery",
+                    "Status",
+                    "Calibration",
+                    (canAdmin || canCalibrate) && "Actions",
+                  ]}
+                />
                 <tbody>
                   {shown.map(({ s, status, standing }) => (
                     <tr

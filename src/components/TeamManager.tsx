@@ -5,7 +5,9 @@ import { z } from "zod";
 import { roleLabels, roles, type Role } from "@/lib/access";
 import { formatDateTime, readProblem } from "@/lib/format";
 import { emailField, nameField } from "@/lib/schemas/users";
-import Field from "./Field";
+import { SelectField, SubmitButton, TextField } from "./Field";
+import { NoticeCard, type Notice } from "./Notice";
+import TableHead from "./TableHead";
 
 export interface TeamUser {
   id: number;
@@ -43,11 +45,7 @@ async function api(path: string, method: string, body?: unknown) {
 /** The manager's team: add people, set roles, deactivate, reset passwords. */
 export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
   const [users, setUsers] = useState(initialUsers);
-  const [notice, setNotice] = useState<{
-    tone: "ok" | "error";
-    text: string;
-    secret?: string;
-  } | null>(null);
+  const [notice, setNotice] = useState<(Notice & { secret?: string }) | null>(null);
   const [busy, setBusy] = useState<number | null>(null);
   const form = useForm<AddForm>({
     resolver: zodResolver(addForm),
@@ -117,10 +115,7 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
   return (
     <div className="grid gap-6">
       {notice && (
-        <div
-          role={notice.tone === "error" ? "alert" : "status"}
-          className={`card p-4 ${notice.tone === "error" ? "bg-alarm-bg text-alarm" : "bg-ok-bg"}`}
-        >
+        <NoticeCard tone={notice.tone}>
           <p className="font-semibold">{notice.text}</p>
           {notice.secret && (
             <p className="mt-2">
@@ -132,7 +127,7 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
               </code>
             </p>
           )}
-        </div>
+        </NoticeCard>
       )}
 
       <section aria-labelledby="people" className="card overflow-x-auto">
@@ -140,25 +135,7 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
           People ({users.length})
         </h2>
         <table className="mt-2 w-full min-w-[44rem] text-left text-sm">
-          <thead className="border-b border-line text-muted">
-            <tr>
-              <th scope="col" className="p-3">
-                Name
-              </th>
-              <th scope="col" className="p-3">
-                Role
-              </th>
-              <th scope="col" className="p-3">
-                Phone
-              </th>
-              <th scope="col" className="p-3">
-                Last sign-in
-              </th>
-              <th scope="col" className="p-3">
-                Actions
-              </th>
-            </tr>
-          </thead>
+          <TableHead columns={["Name", "Role", "Phone", "Last sign-in", "Actions"]} />
           <tbody>
             {users.map((u) => (
               <tr
@@ -251,55 +228,40 @@ export default function TeamManager({ initialUsers, meId, timeZone }: Props) {
           onSubmit={form.handleSubmit(add)}
           noValidate
         >
-          <Field id="add-name" label="Name" error={errors.name?.message}>
-            <input
-              id="add-name"
-              className="input"
-              autoComplete="off"
-              aria-invalid={errors.name ? true : undefined}
-              aria-describedby={errors.name ? "add-name-err" : undefined}
-              {...form.register("name")}
-            />
-          </Field>
-          <Field id="add-email" label="E-mail" error={errors.email?.message}>
-            <input
-              id="add-email"
-              type="email"
-              className="input"
-              autoComplete="off"
-              aria-invalid={errors.email ? true : undefined}
-              aria-describedby={errors.email ? "add-email-err" : undefined}
-              {...form.register("email")}
-            />
-          </Field>
-          <Field id="add-role" label="Role" error={errors.role?.message}>
-            <select id="add-role" className="input" {...form.register("role")}>
-              {roles.map((r) => (
-                <option key={r} value={r}>
-                  {roleLabels[r]}
-                </option>
-              ))}
-            </select>
-          </Field>
-          <Field
+          <TextField
+            id="add-name"
+            label="Name"
+            error={errors.name?.message}
+            autoComplete="off"
+            {...form.register("name")}
+          />
+          <TextField
+            id="add-email"
+            label="E-mail"
+            error={errors.email?.message}
+            type="email"
+            autoComplete="off"
+            {...form.register("email")}
+          />
+          <SelectField
+            id="add-role"
+            label="Role"
+            error={errors.role?.message}
+            options={roles.map((r) => [r, roleLabels[r]])}
+            {...form.register("role")}
+          />
+          <TextField
             id="add-phone"
             label="Mobile phone for alert texts (optional)"
             error={errors.phone?.message}
-          >
-            <input
-              id="add-phone"
-              type="tel"
-              className="input"
-              placeholder="+1 555 010 0123"
-              aria-invalid={errors.phone ? true : undefined}
-              aria-describedby={errors.phone ? "add-phone-err" : undefined}
-              {...form.register("phone")}
-            />
-          </Field>
+            type="tel"
+            placeholder="+1 555 010 0123"
+            {...form.register("phone")}
+          />
           <div className="sm:col-span-2">
-            <button type="submit" className="btn btn-primary" disabled={isSubmitting}>
-              {isSubmitting ? "Adding…" : "Add person"}
-            </button>
+            <SubmitButton busy={isSubmitting} busyLabel="Adding…">
+              Add person
+            </SubmitButton>
           </div>
         </form>
       </section>
