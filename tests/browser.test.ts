@@ -4,9 +4,11 @@ import {
   chromiumAvailable,
   DESK,
   openBrowser,
+  openSignedIn,
   PHONE,
   screenshotPath,
   unlabelled,
+  waitForIslands,
 } from "./helpers/browser";
 import { plinthForBrowser } from "./helpers/browserServer";
 
@@ -59,6 +61,42 @@ describe.skipIf(!available)("in the browser", () => {
 
         await page.goto(`${plinth.url}/team`);
         expect(await page.locator("h1").textContent()).toBe("This page is not open to your role");
+      } finally {
+        await close();
+      }
+    });
+
+    it(`every page a manager opens fits a phone (${scheme}): nothing wider than 390 px`, async () => {
+      const { page, close } = await openSignedIn(
+        { ...PHONE, colorScheme: scheme },
+        "manager@example.com",
+        plinth.url,
+      );
+      try {
+        const wide: string[] = [];
+        for (const path of [
+          "/",
+          "/floor",
+          "/alerts",
+          "/alerts/rules",
+          "/on-call",
+          "/pours",
+          "/ready",
+          "/mixes",
+          "/bins",
+          "/sensors",
+          "/uploads",
+          "/gateways",
+          "/team",
+          "/audit",
+          "/account",
+        ]) {
+          await page.goto(`${plinth.url}${path}`);
+          await waitForIslands(page);
+          const width = await page.evaluate(() => document.documentElement.scrollWidth);
+          if (width > 390) wide.push(`${path}: ${width} px`);
+        }
+        expect(wide).toEqual([]);
       } finally {
         await close();
       }
