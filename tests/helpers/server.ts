@@ -39,9 +39,23 @@ export interface StartOptions {
   dir?: string;
 }
 
-/** Starts the built server in its own process, on free loopback ports, with a temporary database. */
+/**
+ * Starts the built server in its own process, on free loopback ports, with a temporary database.
+ * A port found free can be taken by another test's process before Plinth binds it: a start
+ * that fails on EADDRINUSE is tried again on new ports (three tries in all).
+ */
 export async function startPlinth(options: StartOptions = {}): Promise<RunningPlinth> {
   const dir = options.dir ?? fs.mkdtempSync(path.join(os.tmpdir(), "plinth-test-"));
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await startOnce(options, dir);
+    } catch (err) {
+      if (attempt >= 3 || !(err instanceof Error) || !err.message.includes("EADDRINUSE")) throw err;
+    }
+  }
+}
+
+async function startOnce(options: StartOptions, dir: string): Promise<RunningPlinth> {
   const dbPath = path.join(dir, "plinth.db");
   const port = await freePort();
   const mqttPort = await freePort();
@@ -75,9 +89,11 @@ export async function startPlinth(options: StartOptions = {}): Promise<RunningPl
   const deadline = Date.now() + 60_000;
   for (;;) {
     if (child.exitCode !== null) throw new Error(`Plinth exited while starting:\n${out}`);
+    // Healthy, and this child says it is the one listening (not another test's server that
+    // took the port first).
     try {
       const res = await fetch(`${url}/api/health`);
-      if (res.status === 200) break;
+      if (res.status === 200 && out.includes(`serving on ${url}`)) break;
     } catch {
       // not listening yet
     }
