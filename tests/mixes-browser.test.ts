@@ -89,6 +89,13 @@ describe.skipIf(!available)("a mix's calibration", () => {
       expect(
         await page.getByTestId("fit-warnings").first().locator('[data-code="few-ages"]').count(),
       ).toBe(1);
+      // The phone's cards give each break's equivalent age, as the desk's table does.
+      const cards = page.getByRole("list", { name: "Cylinder breaks of FC-8" }).locator("li");
+      await expect.poll(() => cards.count()).toBeGreaterThan(0);
+      const withAge = await cards.evaluateAll(
+        (els) => els.filter((e) => /equivalent age \d+\.\d h/.test(e.textContent ?? "")).length,
+      );
+      expect(withAge).toBe(await cards.count());
       expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(
         390,
       );

@@ -1017,6 +1017,11 @@ export default function MixCalibration({
                     </span>
                   </div>
                   <p className="text-sm text-muted">
+                    {p.equivalent_age_h !== null && (
+                      <span className="figure">
+                        equivalent age {p.equivalent_age_h.toFixed(1)} h ·{" "}
+                      </span>
+                    )}
                     {p.specimens ?? "No specimen marks"}
                     {p.broken_at &&
                       ` · broken ${new Date(p.broken_at).toLocaleDateString("en-US", { timeZone, dateStyle: "medium" })}`}
