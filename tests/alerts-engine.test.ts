@@ -3,6 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { startFakeSms, type FakeSms } from "@/lib/server/notify/fakes/sms";
 import { startFakeSmtp, type FakeSmtp } from "@/lib/server/notify/fakes/smtp";
 import { call, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import { waitFor } from "./helpers/wait";
 
 // The alert chain end to end, against the real local fakes: readings in through the gateway
 // API, the engine's episodes, the outbox, the worker, the twilio SDK against the SMS fake,
@@ -28,20 +29,6 @@ interface Episode {
   ack_note: string | null;
   ack_via: string | null;
   escalation_level: number;
-}
-
-async function waitFor<T>(
-  what: string,
-  probe: () => T | undefined | null | false | Promise<T | undefined | null | false>,
-  timeoutMs = 30_000,
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const v = await probe();
-    if (v) return v;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((r) => setTimeout(r, 100));
-  }
 }
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));

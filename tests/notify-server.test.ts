@@ -3,6 +3,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import { startFakeSms, type FakeSms } from "@/lib/server/notify/fakes/sms";
 import { startFakeSmtp, type FakeSmtp } from "@/lib/server/notify/fakes/smtp";
 import { call, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
+import { waitFor as waitUntil } from "./helpers/wait";
 
 // Notices in the built server: the outbox survives a SIGKILL and nothing is sent twice,
 // mail goes to an SMTP server named by SMTP_URL and texts to the API SMS_API_BASE names,
@@ -53,19 +54,12 @@ function readNotices(dbPath: string, prefix: string): Row[] {
   }
 }
 
-async function waitFor<T>(
+/** These tests wait on a restarted server and its fakes: a minute before giving up. */
+const waitFor = <T>(
   what: string,
   probe: () => T | undefined | null | false | Promise<T | undefined | null | false>,
   timeoutMs = 60_000,
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const v = await probe();
-    if (v) return v;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((r) => setTimeout(r, 100));
-  }
-}
+) => waitUntil(what, probe, timeoutMs);
 
 const servers: RunningPlinth[] = [];
 const fakes: (FakeSms | FakeSmtp)[] = [];

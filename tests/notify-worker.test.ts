@@ -3,6 +3,11 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
+import { waitFor as waitUntil } from "./helpers/wait";
+
+/** The worker runs in this process on short timers: look often, give up after 15 s. */
+const waitFor = <T>(what: string, probe: () => T | undefined | null | false, timeoutMs = 15_000) =>
+  waitUntil(what, probe, timeoutMs, 25);
 
 // The notice worker in this process against a real SQLite file migrated by the real
 // migrations, the real mail and SMS SDKs, and the real local fakes on loopback.
@@ -33,20 +38,6 @@ const FROM = "Plinth at Brindle Hollow <plinth@plant.example>";
 let smtp: FakeSmtp;
 let sms: FakeSms;
 let worker: Worker | null = null;
-
-async function waitFor<T>(
-  what: string,
-  probe: () => T | undefined | null | false,
-  timeoutMs = 15_000,
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const v = probe();
-    if (v) return v;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((r) => setTimeout(r, 25));
-  }
-}
 
 const sentRow = (key: string) =>
   waitFor(`${key} sent`, () => {

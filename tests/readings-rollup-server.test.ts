@@ -2,6 +2,7 @@ import Database from "better-sqlite3";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { call, demoEmail, signIn, startPlinth, type RunningPlinth } from "./helpers/server";
 import { bruteRollupRows, bruteThin, ROLLUP_COLUMNS, type Reading } from "./helpers/thinning";
+import { waitFor } from "./helpers/wait";
 
 // The chart window (contracts.md: GET /api/v1/sensors/{id}/readings, "thinned to at most
 // max_points for charts without hiding a peak or a dip") from the readings rollup, against
@@ -87,14 +88,6 @@ function fromFile(sensor: string) {
   }
 }
 
-async function until(what: string, ok: () => boolean, timeoutMs = 30_000) {
-  const deadline = Date.now() + timeoutMs;
-  while (!ok()) {
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((r) => setTimeout(r, 200));
-  }
-}
-
 describe("the chart window from the readings rollup, across restarts", () => {
   it("keeps every chart bucket's extremes of a gateway's readings, late ones and restarts included", async () => {
     const sensor = "RU-SRV-01";
@@ -144,7 +137,7 @@ describe("the chart window from the readings rollup, across restarts", () => {
 
   it("rolls the demo plant's seeded history up at start and charts it as the raw readings would", async () => {
     const sensor = "CB-07";
-    await until("the demo sensor's roll-up, both spans", () => {
+    await waitFor("the demo sensor's roll-up, both spans", () => {
       const marks = fromFile(sensor);
       return marks.mark !== null && marks.hoursMark === Math.floor(marks.mark / HOUR) * HOUR;
     });
