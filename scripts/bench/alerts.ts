@@ -17,7 +17,6 @@
  * on any other episode's window, one `alert` opened event on the live feed per episode, and
  * every cleared text too; anything lost or doubled fails both rows.
  */
-import http from "node:http";
 import { performance } from "node:perf_hooks";
 import path from "node:path";
 import { call, signIn } from "../../tests/helpers/server";
@@ -26,7 +25,7 @@ import type { Sizes } from "./options";
 import { startPlinth, type BenchPlinth } from "./plinth";
 import { progressReporter, say } from "./progress";
 import type { BenchResult } from "./result";
-import { drainEvents } from "./sse";
+import { connectLive } from "./sse";
 import { median, percentile, round, worst } from "./stats";
 
 /** The demo plant's accounts, gateway and rota, as src/lib/server/demo/seed.ts and alerts.ts make them. */
@@ -46,7 +45,6 @@ const TEXT_WAIT_MS = 10_000;
 const POLL_MS = 20;
 /** Quiet before the final count: longer than the notice worker's 1 s poll. */
 const SETTLE_MS = 1_500;
-const CONNECT_WAIT_MS = 10_000;
 /** This many texts lost in a row stops the run: something is broken, not slow. */
 const MAX_LOST_IN_A_ROW = 3;
 
@@ -81,49 +79,20 @@ interface LiveFeed {
 const keyOf = (sensor: string, tsMs: number) => `${sensor}|${tsMs}`;
 
 /** Opens the live feed as the manager; resolves once its `hello` event arrived. */
-function openLive(plinth: BenchPlinth, cookie: string, ruleId: number): Promise<LiveFeed> {
-  return new Promise((resolve, reject) => {
-    const committedAt: LiveFeed["committedAt"] = new Map();
-    const opened: LiveFeed["opened"] = [];
-    let buffer = "";
-    const onData = (chunk: string) => {
-      const receivedAtMs = Date.now();
-      buffer = drainEvents(buffer + chunk, ({ event, data }) => {
-        if (event === "hello") {
-          clearTimeout(timer);
-          resolve({ committedAt, opened, close: () => req.destroy() });
-        } else if (event === "readings") {
-          for (const r of JSON.parse(data) as {
-            sensor: string;
-            ts: number;
-            committed_at: number;
-          }[])
-            committedAt.set(keyOf(r.sensor, r.ts), r.committed_at);
-        } else if (event === "alert") {
-          const a = JSON.parse(data) as { change: string; rule_id: number; sensor: string | null };
-          if (a.change === "opened" && a.rule_id === ruleId && a.sensor)
-            opened.push({ sensor: a.sensor, receivedAtMs });
-        }
-      });
-    };
-    const headers = { cookie, accept: "text/event-stream" };
-    const req = http.get(`${plinth.url}/api/v1/live`, { headers }, (res) => {
-      if (res.statusCode !== 200)
-        return fail(new Error(`GET /api/v1/live answered ${res.statusCode}`));
-      res.setEncoding("utf8");
-      res.on("data", onData);
-    });
-    const fail = (err: Error) => {
-      clearTimeout(timer);
-      req.destroy();
-      reject(err);
-    };
-    const timer = setTimeout(
-      () => fail(new Error(`no hello event from /api/v1/live in ${CONNECT_WAIT_MS / 1000} s`)),
-      CONNECT_WAIT_MS,
-    );
-    req.on("error", fail);
+async function openLive(plinth: BenchPlinth, cookie: string, ruleId: number): Promise<LiveFeed> {
+  const committedAt: LiveFeed["committedAt"] = new Map();
+  const opened: LiveFeed["opened"] = [];
+  const { close } = await connectLive(plinth.url, cookie, ({ event, data }, receivedAtMs) => {
+    if (event === "readings") {
+      for (const r of JSON.parse(data) as { sensor: string; ts: number; committed_at: number }[])
+        committedAt.set(keyOf(r.sensor, r.ts), r.committed_at);
+    } else if (event === "alert") {
+      const a = JSON.parse(data) as { change: string; rule_id: number; sensor: string | null };
+      if (a.change === "opened" && a.rule_id === ruleId && a.sensor)
+        opened.push({ sensor: a.sensor, receivedAtMs });
+    }
   });
+  return { committedAt, opened, close };
 }
 
 async function getJson<T>(plinth: BenchPlinth, cookie: string, pathName: string): Promise<T> {

@@ -5,7 +5,6 @@
  * `readings` event minus the event's committed_at (both clocks are this machine's, in whole
  * milliseconds). The limit: the HTTP round trip of the same posts.
  */
-import http from "node:http";
 import { performance } from "node:perf_hooks";
 import { freshPlinthDb } from "./db";
 import type { Sizes } from "./options";
@@ -17,14 +16,13 @@ import {
   type Gateway,
 } from "./plinth";
 import { progressReporter, say } from "./progress";
-import { drainEvents } from "./sse";
+import { connectLive } from "./sse";
 import type { BenchResult } from "./result";
 import { median, percentile, round, worst } from "./stats";
 
 const SENSORS = 10;
 const TARGET_WORST_MS = 50;
 const EVENT_WAIT_MS = 10_000;
-const CONNECT_WAIT_MS = 10_000;
 
 interface LiveReading {
   sensor: string;
@@ -41,41 +39,14 @@ interface LiveClient {
 const keyOf = (sensor: string, ts: number) => `${sensor}|${ts}`;
 
 /** Opens the live feed and resolves once its `hello` event has arrived. */
-function openLive(plinth: BenchPlinth, cookie: string): Promise<LiveClient> {
-  return new Promise((resolve, reject) => {
-    const seen: LiveClient["seen"] = new Map();
-    const onData = (chunk: string) => {
-      const receivedAtMs = Date.now();
-      buffer = drainEvents(buffer + chunk, ({ event, data }) => {
-        if (event === "hello") {
-          clearTimeout(timer);
-          resolve({ seen, close: () => req.destroy() });
-        }
-        if (event !== "readings") return;
-        for (const r of JSON.parse(data) as LiveReading[]) {
-          seen.set(keyOf(r.sensor, r.ts), { receivedAtMs, committedAtMs: r.committed_at });
-        }
-      });
-    };
-    let buffer = "";
-    const headers = { cookie, accept: "text/event-stream" };
-    const req = http.get(`${plinth.url}/api/v1/live`, { headers }, (res) => {
-      if (res.statusCode !== 200)
-        return fail(new Error(`GET /api/v1/live answered ${res.statusCode}`));
-      res.setEncoding("utf8");
-      res.on("data", onData);
-    });
-    const fail = (err: Error) => {
-      clearTimeout(timer);
-      req.destroy();
-      reject(err);
-    };
-    const timer = setTimeout(
-      () => fail(new Error(`no hello event from /api/v1/live in ${CONNECT_WAIT_MS / 1000} s`)),
-      CONNECT_WAIT_MS,
-    );
-    req.on("error", fail);
+async function openLive(plinth: BenchPlinth, cookie: string): Promise<LiveClient> {
+  const seen: LiveClient["seen"] = new Map();
+  const { close } = await connectLive(plinth.url, cookie, ({ event, data }, receivedAtMs) => {
+    if (event !== "readings") return;
+    for (const r of JSON.parse(data) as LiveReading[])
+      seen.set(keyOf(r.sensor, r.ts), { receivedAtMs, committedAtMs: r.committed_at });
   });
+  return { seen, close };
 }
 
 /** Posts one reading; returns the round trip in ms. */

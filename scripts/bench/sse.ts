@@ -1,4 +1,5 @@
 /** A small reader of server-sent events (text/event-stream), enough for the live feed. */
+import http from "node:http";
 
 export interface SseEvent {
   event: string;
@@ -26,4 +27,48 @@ export function drainEvents(buffer: string, onEvent: (e: SseEvent) => void): str
     end = rest.indexOf("\n\n");
   }
   return rest;
+}
+
+/** How long a connection to the live feed may take to say hello. */
+const CONNECT_WAIT_MS = 10_000;
+
+/**
+ * Connects to Plinth's live feed (GET /api/v1/live) with the session `cookie` and resolves,
+ * with a way to close it, once its `hello` event has arrived. Every event after it goes to
+ * `onEvent` with the time (epoch ms) its chunk was received.
+ */
+export function connectLive(
+  url: string,
+  cookie: string,
+  onEvent: (e: SseEvent, receivedAtMs: number) => void,
+): Promise<{ close: () => void }> {
+  return new Promise((resolve, reject) => {
+    let buffer = "";
+    const onData = (chunk: string) => {
+      const receivedAtMs = Date.now();
+      buffer = drainEvents(buffer + chunk, (e) => {
+        if (e.event === "hello") {
+          clearTimeout(timer);
+          resolve({ close: () => req.destroy() });
+        } else onEvent(e, receivedAtMs);
+      });
+    };
+    const headers = { cookie, accept: "text/event-stream" };
+    const req = http.get(`${url}/api/v1/live`, { headers }, (res) => {
+      if (res.statusCode !== 200)
+        return fail(new Error(`GET /api/v1/live answered ${res.statusCode}`));
+      res.setEncoding("utf8");
+      res.on("data", onData);
+    });
+    const fail = (err: Error) => {
+      clearTimeout(timer);
+      req.destroy();
+      reject(err);
+    };
+    const timer = setTimeout(
+      () => fail(new Error(`no hello event from /api/v1/live in ${CONNECT_WAIT_MS / 1000} s`)),
+      CONNECT_WAIT_MS,
+    );
+    req.on("error", fail);
+  });
 }
